@@ -1,0 +1,34 @@
+"""Basic structure of CreasePattern (half-edge faces, panel graph, Euler's formula)."""
+
+import numpy as np
+import pytest
+
+from thickpanel import CreasePattern, PatternError
+
+
+def grid(n: int) -> CreasePattern:
+    xs, ys = np.meshgrid(np.arange(n + 1.0), np.arange(n + 1.0))
+    v = np.stack([xs.ravel(), ys.ravel()], 1) * 10.0
+    e, k = [], []
+    for i in range(n + 1):
+        for j in range(n):
+            e.append([i * (n + 1) + j, i * (n + 1) + j + 1])
+            k.append("border" if i in (0, n) else "valley")
+            e.append([j * (n + 1) + i, (j + 1) * (n + 1) + i])
+            k.append("border" if i in (0, n) else "mountain")
+    return CreasePattern(v, e, k)
+
+
+def test_grid_faces_and_euler():
+    cp = grid(4)
+    assert cp.n_panels == 16
+    assert all(p.area == pytest.approx(100.0) for p in cp.panels)
+    # Euler's formula V - E + F = 2 (F counts the outside face); standard graph theory.
+    assert cp.n_vertices - cp.n_creases + cp.n_panels + 1 == 2
+    assert len(cp.interior_vertices) == 9
+    assert cp.panel_graph.number_of_edges() == 24
+
+
+def test_crossing_is_reported_with_ids():
+    with pytest.raises(PatternError, match="C000 and C001 cross"):
+        CreasePattern([[0, 0], [2, 2], [0, 2], [2, 0]], [[0, 1], [2, 3]], ["valley"] * 2)

@@ -1,0 +1,551 @@
+"""The crease pattern: a planar graph of vertices and creases whose faces are the panels.
+
+Conventions (see ``docs/architecture.md``)
+------------------------------------------
+* The pattern lies in the plane z = 0 seen from +z; coordinates are millimetres.
+* Crease ``c`` runs from ``creases[c, 0]`` to ``creases[c, 1]``. Its half-edges are ``2c``
+  (forward) and ``2c + 1`` (backward); the face to the *left* of a half-edge is the one it bounds.
+* Panels are the bounded faces, each a counter-clockwise vertex loop. ``crease_panels[c]`` is
+  ``(left, right)`` of the forward direction, ``-1`` for the outside.
+* Around every vertex the incident creases are ordered counter-clockwise by direction angle.
+* Crease kinds: ``mountain``, ``valley`` (folding), ``border`` (edge of the sheet), ``cut`` (a slit:
+  both sides are free edges), ``flat`` (a drawn line that does not fold).
+* Fold angles are signed radians: 0 flat, > 0 valley seen from +z, < 0 mountain, +-pi folded flat.
+* A seam identifies two border creases as one hinge line (a strip closed into a tube): vertex
+  ``creases[a, 0]`` meets ``creases[b, 0]`` and ``creases[a, 1]`` meets ``creases[b, 1]``.
+* Ids ``V012``, ``C042``, ``P017`` (zero padded to three digits) name items in every message.
+
+The object is immutable: arrays are read-only and derived data are cached.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cached_property
+from typing import TYPE_CHECKING, Any
+
+import networkx as nx
+import numpy as np
+
+from .errors import PatternError
+from .geometry2d import polygon_area, polygon_centroid, polygon_is_convex
+from .tolerances import DEFAULT_TOL, Tolerances
+from .typing import FloatArray, IntArray
+
+if TYPE_CHECKING:
+    from collections.abc import Sequence
+
+__all__ = [
+    "KINDS",
+    "FOLDING_KINDS",
+    "Seam",
+    "Panel",
+    "Finding",
+    "CreasePattern",
+    "vid",
+    "cid",
+    "pid",
+]
+
+KINDS: tuple[str, ...] = ("mountain", "valley", "border", "cut", "flat")
+FOLDING_KINDS: frozenset[str] = frozenset({"mountain", "valley"})
+
+
+def vid(i: int) -> str:
+    """Stable id of vertex ``i``, e.g. ``V012``."""
+    return f"V{int(i):03d}"
+
+
+def cid(i: int) -> str:
+    """Stable id of crease ``i``, e.g. ``C042``."""
+    return f"C{int(i):03d}"
+
+
+def pid(i: int) -> str:
+    """Stable id of panel ``i``, e.g. ``P017``."""
+    return f"P{int(i):03d}"
+
+
+@dataclass(frozen=True)
+class Seam:
+    """Two border creases identified as one hinge line.
+
+    Attributes
+    ----------
+    a, b : int
+        Crease indices (both of kind ``border``); ``creases[a, k]`` meets ``creases[b, k]``.
+    kind : str
+        ``mountain`` or ``valley``: how the joined hinge folds.
+    target_angle : float, rad
+        Signed target fold angle, NaN when not given.
+    """
+
+    a: int
+    b: int
+    kind: str = "valley"
+    target_angle: float = float("nan")
+
+
+@dataclass(frozen=True)
+class Panel:
+    """One panel: a bounded face of the crease graph.
+
+    Attributes
+    ----------
+    index : int
+    loop : tuple of int
+        Vertex indices, counter-clockwise, starting at the smallest index.
+    edges : tuple of int
+        ``edges[k]`` is the crease from ``loop[k]`` to ``loop[k + 1]`` (cyclic).
+    area : float, mm^2
+    centroid : tuple of float, mm
+    convex : bool
+    """
+
+    index: int
+    loop: tuple[int, ...]
+    edges: tuple[int, ...]
+    area: float
+    centroid: tuple[float, float]
+    convex: bool
+
+    @property
+    def id(self) -> str:
+        """Stable id, e.g. ``P017``."""
+        return pid(self.index)
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One validation finding.
+
+    Attributes
+    ----------
+    kind : str
+        Short machine-readable category, e.g. ``crossing``, ``dangling``, ``open_border``.
+    ids : tuple of str
+        The vertices, creases or panels concerned (``V003``, ``C017``, ``P002``).
+    where : tuple of float or None, mm
+        A representative location.
+    message : str
+        Human-readable sentence naming ids and values.
+    """
+
+    kind: str
+    ids: tuple[str, ...]
+    where: tuple[float, float] | None
+    message: str
+
+    def __str__(self) -> str:
+        return self.message
+
+
+def _readonly(a: np.ndarray) -> np.ndarray:
+    a = np.array(a, copy=True)
+    a.setflags(write=False)
+    return a
+
+
+class CreasePattern:
+    """A crease pattern: vertices, creases with kinds, and the panels they enclose.
+
+    Parameters
+    ----------
+    vertices : (n, 2) float, mm
+    creases : (m, 2) int
+        Vertex indices of each crease.
+    kinds : sequence of str, length m
+        One of :data:`KINDS` per crease.
+    target_angles : (m,) float, rad, optional
+        Signed target fold angle per crease (NaN = not given). Valley positive, mountain negative.
+    seams : sequence of Seam, optional
+        Border creases joined into hinge lines.
+    name : str
+        Free text used in reports and export names.
+    tol : Tolerances
+    validate : bool
+        When True (default) the constructor raises :class:`PatternError` with the first finding
+        of :meth:`problems`. With False an invalid pattern can be built and inspected.
+
+    Examples
+    --------
+    >>> sq = CreasePattern([[0, 0], [10, 0], [10, 10], [0, 10]],
+    ...                    [[0, 1], [1, 2], [2, 3], [3, 0]], ["border"] * 4)
+    >>> sq.n_panels, sq.panels[0].area
+    (1, 100.0)
+    """
+
+    def __init__(
+        self,
+        vertices: Any,
+        creases: Any,
+        kinds: Sequence[str],
+        target_angles: Any = None,
+        *,
+        seams: Sequence[Seam] = (),
+        name: str = "",
+        tol: Tolerances = DEFAULT_TOL,
+        validate: bool = True,
+    ) -> None:
+        try:
+            v = np.asarray(vertices, dtype=np.float64)
+        except (TypeError, ValueError) as exc:
+            raise PatternError(f"vertices must be an (n, 2) array of numbers in mm: {exc}") from None
+        try:
+            c_raw = np.asarray(creases)
+            c = c_raw.astype(np.int64)
+        except (TypeError, ValueError) as exc:
+            raise PatternError(f"creases must be an (m, 2) array of vertex indices: {exc}") from None
+        if v.ndim != 2 or v.shape[1] != 2:
+            v = v.reshape(-1, 2) if v.size == 0 else v
+            if v.ndim != 2 or v.shape[1] != 2:
+                raise PatternError(f"vertices must have shape (n, 2); got {np.shape(vertices)}")
+        if c.size == 0:
+            c = c.reshape(0, 2)
+        if c.ndim != 2 or c.shape[1] != 2:
+            raise PatternError(f"creases must have shape (m, 2); got {np.shape(creases)}")
+        if c_raw.size and np.issubdtype(c_raw.dtype, np.floating) and not np.all(c_raw == c):
+            raise PatternError("crease vertex indices must be whole numbers")
+        kinds_t = tuple(str(k) for k in kinds)
+        if len(kinds_t) != len(c):
+            raise PatternError(f"kinds has {len(kinds_t)} entries for {len(c)} creases")
+        if target_angles is None:
+            ta = np.full(len(c), np.nan)
+        else:
+            ta = np.asarray(target_angles, dtype=np.float64).reshape(-1)
+            if len(ta) != len(c):
+                raise PatternError(f"target_angles has {len(ta)} entries for {len(c)} creases")
+        self._vertices: FloatArray = _readonly(v)
+        self._creases: IntArray = _readonly(c)
+        self._kinds = kinds_t
+        self._target = _readonly(ta)
+        self._seams = tuple(seams)
+        self.name = str(name)
+        self.tol = tol
+        if validate:
+            self.assert_valid()
+
+    # ------------------------------------------------------------------ basic data
+    @property
+    def vertices(self) -> FloatArray:
+        """(n, 2) float, mm, read-only."""
+        return self._vertices
+
+    @property
+    def creases(self) -> IntArray:
+        """(m, 2) int, read-only."""
+        return self._creases
+
+    @property
+    def kinds(self) -> tuple[str, ...]:
+        """Crease kind per crease."""
+        return self._kinds
+
+    @property
+    def target_angles(self) -> FloatArray:
+        """(m,) float, rad, signed target fold angles, NaN where not given."""
+        return self._target
+
+    @property
+    def seams(self) -> tuple[Seam, ...]:
+        """Seams joining border creases."""
+        return self._seams
+
+    @property
+    def n_vertices(self) -> int:
+        return int(len(self._vertices))
+
+    @property
+    def n_creases(self) -> int:
+        return int(len(self._creases))
+
+    @property
+    def n_panels(self) -> int:
+        return len(self.panels)
+
+    def __repr__(self) -> str:
+        label = f" {self.name!r}" if self.name else ""
+        return (
+            f"<CreasePattern{label}: {self.n_vertices} vertices, {self.n_creases} creases, "
+            f"{self.n_panels if self._structure_ok else '?'} panels>"
+        )
+
+    def replace(self, **changes: Any) -> CreasePattern:
+        """A new pattern with some constructor arguments changed (copy on transform)."""
+        args: dict[str, Any] = dict(
+            vertices=self._vertices,
+            creases=self._creases,
+            kinds=self._kinds,
+            target_angles=self._target,
+            seams=self._seams,
+            name=self.name,
+            tol=self.tol,
+        )
+        args.update(changes)
+        return CreasePattern(**args)
+
+    @cached_property
+    def kind_array(self) -> np.ndarray:
+        """(m,) array of kind strings (read-only)."""
+        return _readonly(np.array(self._kinds, dtype=object))
+
+    @cached_property
+    def folding(self) -> np.ndarray:
+        """(m,) bool: crease is mountain or valley."""
+        return _readonly(np.array([k in FOLDING_KINDS for k in self._kinds], dtype=bool))
+
+    @cached_property
+    def crease_lengths(self) -> FloatArray:
+        """(m,) float, mm."""
+        d = self._vertices[self._creases[:, 1]] - self._vertices[self._creases[:, 0]]
+        return _readonly(np.linalg.norm(d, axis=1))
+
+    @cached_property
+    def crease_directions(self) -> FloatArray:
+        """(m, 2) float, unit vectors from the first to the second vertex of each crease."""
+        d = self._vertices[self._creases[:, 1]] - self._vertices[self._creases[:, 0]]
+        n = np.linalg.norm(d, axis=1)
+        return _readonly(d / np.where(n > 0, n, 1.0)[:, None])
+
+    # ------------------------------------------------------------------ half-edge structure
+    @cached_property
+    def _structure_ok(self) -> bool:
+        from .pattern_checks import structural_findings
+
+        return not structural_findings(self)
+
+    def _require_structure(self) -> None:
+        if not self._structure_ok:
+            from .pattern_checks import structural_findings
+
+            raise PatternError(structural_findings(self)[0].message)
+
+    @cached_property
+    def _half_edges(self) -> dict[str, np.ndarray]:
+        """Rotation system: half-edges sorted counter-clockwise around each vertex."""
+        self._require_structure()
+        c = self._creases
+        n = self.n_vertices
+        origin = c.reshape(-1)  # half-edge 2k: c[k,0] -> c[k,1]; 2k+1: c[k,1] -> c[k,0]
+        dest = c[:, ::-1].reshape(-1)
+        d = self._vertices[dest] - self._vertices[origin]
+        ang = np.arctan2(d[:, 1], d[:, 0])
+        order = np.lexsort((ang, origin))
+        counts = np.bincount(origin, minlength=n)
+        offsets = np.concatenate([[0], np.cumsum(counts)])
+        pos = np.empty(len(origin), dtype=np.int64)
+        pos[order] = np.arange(len(origin))
+        # previous half-edge in ccw order around the same origin (cyclic within the group)
+        start = offsets[origin[order]]
+        size = counts[origin[order]]
+        local = np.arange(len(origin)) - start
+        prev_sorted = order[start + (local - 1) % np.maximum(size, 1)]
+        prev_ccw = np.empty(len(origin), dtype=np.int64)
+        prev_ccw[order] = prev_sorted
+        twin = np.arange(len(origin)) ^ 1
+        nxt = prev_ccw[twin]  # next half-edge of the face on the left
+        return {
+            "origin": origin,
+            "dest": dest,
+            "angle": ang,
+            "order": order,
+            "offsets": offsets,
+            "next": nxt,
+            "pos": pos,
+        }
+
+    @cached_property
+    def star(self) -> tuple[IntArray, IntArray, FloatArray]:
+        """Creases around every vertex in counter-clockwise order (CSR layout).
+
+        Returns
+        -------
+        offsets : (n + 1,) int
+            Vertex ``v``'s entries are ``offsets[v]:offsets[v + 1]``.
+        creases : (2m,) int
+            Crease index of each entry.
+        angles : (2m,) float, rad
+            Direction angle in (-pi, pi] of each crease leaving the vertex, increasing.
+        """
+        he = self._half_edges
+        order = he["order"]
+        return (
+            _readonly(he["offsets"]),
+            _readonly(order // 2),
+            _readonly(he["angle"][order]),
+        )
+
+    def vertex_creases(self, v: int) -> tuple[int, ...]:
+        """Creases at vertex ``v`` in counter-clockwise order."""
+        offsets, creases, _ = self.star
+        return tuple(int(x) for x in creases[offsets[v] : offsets[v + 1]])
+
+    @cached_property
+    def _faces(self) -> tuple[list[list[int]], np.ndarray]:
+        """Half-edge cycles (faces) and the face index of every half-edge."""
+        he = self._half_edges
+        nxt = he["next"]
+        face_of = np.full(len(nxt), -1, dtype=np.int64)
+        faces: list[list[int]] = []
+        nxt_l = nxt.tolist()
+        for h0 in range(len(nxt_l)):
+            if face_of[h0] >= 0:
+                continue
+            cyc = [h0]
+            face_of[h0] = len(faces)
+            h = nxt_l[h0]
+            while h != h0:
+                if face_of[h] >= 0:  # cannot happen for a permutation; guards corrupt input
+                    break
+                face_of[h] = len(faces)
+                cyc.append(h)
+                h = nxt_l[h]
+            faces.append(cyc)
+        return faces, face_of
+
+    @cached_property
+    def _face_areas(self) -> FloatArray:
+        faces, _ = self._faces
+        origin = self._half_edges["origin"]
+        return np.array([polygon_area(self._vertices[origin[f]]) for f in faces])
+
+    @cached_property
+    def outer_faces(self) -> tuple[int, ...]:
+        """Raw face indices with non-positive area: the outside of each connected piece."""
+        areas = self._face_areas
+        return tuple(int(i) for i in np.nonzero(areas <= 0)[0])
+
+    @cached_property
+    def panels(self) -> tuple[Panel, ...]:
+        """The bounded faces, in a deterministic order (first half-edge met)."""
+        faces, _ = self._faces
+        origin = self._half_edges["origin"]
+        outer = set(self.outer_faces)
+        result: list[Panel] = []
+        self._face_to_panel = np.full(len(faces), -1, dtype=np.int64)
+        for fi, cyc in enumerate(faces):
+            if fi in outer:
+                continue
+            loop = [int(origin[h]) for h in cyc]
+            edges = [h // 2 for h in cyc]
+            k = int(np.argmin(loop))
+            loop = loop[k:] + loop[:k]
+            edges = edges[k:] + edges[:k]
+            poly = self._vertices[loop]
+            self._face_to_panel[fi] = len(result)
+            result.append(
+                Panel(
+                    index=len(result),
+                    loop=tuple(loop),
+                    edges=tuple(int(e) for e in edges),
+                    area=float(polygon_area(poly)),
+                    centroid=tuple(float(x) for x in polygon_centroid(poly)),  # type: ignore[arg-type]
+                    convex=polygon_is_convex(poly, angle_tol=self.tol.angle),
+                )
+            )
+        return tuple(result)
+
+    def panel_polygon(self, p: int) -> FloatArray:
+        """(k, 2) float, mm: the counter-clockwise polygon of panel ``p``."""
+        return self._vertices[list(self.panels[p].loop)]
+
+    @cached_property
+    def crease_panels(self) -> IntArray:
+        """(m, 2) int: (left, right) panel of each crease's forward direction, -1 outside."""
+        self.panels  # noqa: B018  (fills _face_to_panel)
+        _, face_of = self._faces
+        f2p = self._face_to_panel
+        left = f2p[face_of[0::2]]
+        right = f2p[face_of[1::2]]
+        return _readonly(np.stack([left, right], axis=1))
+
+    @cached_property
+    def border_vertices(self) -> IntArray:
+        """Vertices on the outside of the sheet or on a cut (sorted)."""
+        faces, _ = self._faces
+        origin = self._half_edges["origin"]
+        on = np.zeros(self.n_vertices, dtype=bool)
+        for fi in self.outer_faces:
+            on[origin[faces[fi]]] = True
+        cut = np.array([k == "cut" for k in self._kinds], dtype=bool)
+        on[self._creases[cut].reshape(-1)] = True
+        return _readonly(np.nonzero(on)[0])
+
+    @cached_property
+    def interior_vertices(self) -> IntArray:
+        """Vertices inside the sheet, not on the border or a cut (sorted)."""
+        deg = np.bincount(self._creases.reshape(-1), minlength=self.n_vertices)
+        mask = deg > 0
+        mask[self.border_vertices] = False
+        return _readonly(np.nonzero(mask)[0])
+
+    @cached_property
+    def panel_graph(self) -> nx.Graph:
+        """Panel adjacency graph (frozen networkx graph).
+
+        Nodes are panel indices with attribute ``id``. An edge joins the two panels on either side
+        of every mountain, valley or flat crease (attributes ``crease``, ``kind``) and of every
+        seam (``crease`` = seam's ``a``, ``seam`` = ``b``, ``kind`` = the seam's kind).
+        """
+        g = nx.Graph()
+        for p in self.panels:
+            g.add_node(p.index, id=p.id)
+        cp = self.crease_panels
+        for c, kind in enumerate(self._kinds):
+            if kind in ("mountain", "valley", "flat"):
+                a, b = int(cp[c, 0]), int(cp[c, 1])
+                if a >= 0 and b >= 0 and a != b:
+                    g.add_edge(a, b, crease=c, kind=kind)
+        for s in self._seams:
+            pa = int(max(cp[s.a]))
+            pb = int(max(cp[s.b]))
+            if pa >= 0 and pb >= 0:
+                g.add_edge(pa, pb, crease=s.a, seam=s.b, kind=s.kind)
+        return nx.freeze(g)
+
+    # ------------------------------------------------------------------ validation
+    def problems(self) -> list[Finding]:
+        """Every validation finding, structural ones first (empty for a valid pattern)."""
+        from .pattern_checks import find_problems
+
+        return find_problems(self)
+
+    def is_valid(self) -> bool:
+        """True when :meth:`problems` is empty."""
+        return not self.problems()
+
+    def assert_valid(self) -> None:
+        """Raise :class:`PatternError` with the first finding, if any."""
+        found = self.problems()
+        if found:
+            more = f" (and {len(found) - 1} more findings)" if len(found) > 1 else ""
+            raise PatternError(found[0].message + more)
+
+    # ------------------------------------------------------------------ construction helpers
+    @classmethod
+    def from_segments(
+        cls,
+        segments: Any,
+        kinds: Sequence[str],
+        target_angles: Any = None,
+        *,
+        split: bool = True,
+        name: str = "",
+        tol: Tolerances = DEFAULT_TOL,
+    ) -> CreasePattern:
+        """Build a pattern from a line soup as a CAD drawing gives it.
+
+        Coincident end points (within ``tol.merge``) are merged; with ``split=True`` creases are
+        split at crossings and T-junctions. See :func:`thickpanel.segments.pattern_from_segments`.
+
+        Parameters
+        ----------
+        segments : (k, 2, 2) float, mm
+        kinds : sequence of str, length k
+        target_angles : (k,) float, rad, optional
+        """
+        from .segments import pattern_from_segments
+
+        return pattern_from_segments(
+            segments, kinds, target_angles, split=split, name=name, tol=tol
+        )

@@ -1,0 +1,327 @@
+"""Fold states and panel poses: composing hinge rotations along a spanning tree of panels.
+
+This module holds the values every later stage consumes (:class:`FoldState`, :class:`FoldPath`)
+and the one function that turns crease angles into panel poses. The path-following solver lives
+in :mod:`thickpanel.kinematics`.
+
+Pose convention
+---------------
+``poses[p]`` is a 4x4 rigid transform taking a point of the *flat sheet* (x, y, z) with z along
+the sheet normal (+z up) to its folded position. The base panel keeps the identity. Crossing a
+crease with fold angle rho from panel A to panel B: if B lies to the *right* of the crease's
+forward direction d, ``pose_B = pose_A @ Rot(axis, -rho)``; if to the left, ``Rot(axis, +rho)``;
+so a valley (rho > 0) lifts both sides towards +z. The rotation axis is the crease line on the
+reference surface, or a shifted hinge line given by a thickness method.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
+
+import networkx as nx
+import numpy as np
+
+from .errors import FoldError
+from .pattern import CreasePattern, pid
+from .typing import FloatArray, IntArray
+
+if TYPE_CHECKING:
+    pass
+
+__all__ = [
+    "FoldState",
+    "FoldPath",
+    "rotation_about_line",
+    "spanning_tree",
+    "default_base_panel",
+    "compose_poses",
+    "fold_state_from_angles",
+    "closure_error",
+]
+
+
+def rotation_about_line(point: FloatArray, direction: FloatArray, angle: float) -> FloatArray:
+    """4x4 rigid transform rotating by ``angle`` (rad, right-hand rule) about a line.
+
+    Parameters
+    ----------
+    point : (3,) float, mm
+        A point on the line.
+    direction : (3,) float
+        Line direction (normalised here).
+    angle : float, rad
+    """
+    d = np.asarray(direction, dtype=float)
+    d = d / np.linalg.norm(d)
+    x, y, z = d
+    c, s = np.cos(angle), np.sin(angle)
+    C = 1.0 - c
+    r = np.array(
+        [
+            [c + x * x * C, x * y * C - z * s, x * z * C + y * s],
+            [y * x * C + z * s, c + y * y * C, y * z * C - x * s],
+            [z * x * C - y * s, z * y * C + x * s, c + z * z * C],
+        ]
+    )
+    t = np.eye(4)
+    t[:3, :3] = r
+    p = np.asarray(point, dtype=float)
+    t[:3, 3] = p - r @ p
+    return t
+
+
+def default_base_panel(pattern: CreasePattern) -> int:
+    """The panel whose centroid is nearest the centroid of the whole sheet (largest on ties)."""
+    cents = np.array([p.centroid for p in pattern.panels])
+    areas = np.array([p.area for p in pattern.panels])
+    mid = (cents * areas[:, None]).sum(axis=0) / areas.sum()
+    d = np.linalg.norm(cents - mid, axis=1)
+    return int(np.lexsort((-areas, np.round(d, 9)))[0])
+
+
+def spanning_tree(pattern: CreasePattern, base: int) -> list[tuple[int, int, int]]:
+    """Breadth-first tree edges ``(parent, child, crease)`` from ``base`` over the panel graph.
+
+    Seams are used only if needed to reach a panel. Neighbours are visited in increasing panel
+    index so the tree is deterministic.
+    """
+    g = pattern.panel_graph
+    if base not in g:
+        raise FoldError(f"base panel {pid(base)} does not exist (panels P000..{pid(pattern.n_panels - 1)})")
+    order: list[tuple[int, int, int]] = []
+    seen = {base}
+    frontier = [base]
+    while frontier:
+        nxt: list[int] = []
+        for a in frontier:
+            nbrs = sorted(g.adj[a], key=lambda b: ("seam" in g.edges[a, b], b))
+            for b in nbrs:
+                if b in seen:
+                    continue
+                seen.add(b)
+                order.append((a, b, int(g.edges[a, b]["crease"])))
+                nxt.append(b)
+        frontier = nxt
+    if len(seen) != pattern.n_panels:
+        missing = sorted(set(range(pattern.n_panels)) - seen)[:5]
+        raise FoldError(
+            "panels " + ", ".join(pid(p) for p in missing) + " are not connected to the base panel "
+            f"{pid(base)} through folding or flat creases"
+        )
+    return order
+
+
+def _hinge_axis(pattern: CreasePattern, crease: int) -> tuple[FloatArray, FloatArray]:
+    v0, v1 = pattern.creases[crease]
+    a = np.append(pattern.vertices[v0], 0.0)
+    b = np.append(pattern.vertices[v1], 0.0)
+    return a, b - a
+
+
+def compose_poses(
+    pattern: CreasePattern,
+    angles: FloatArray,
+    *,
+    base: int | None = None,
+    axis_points: FloatArray | None = None,
+    axis_dirs: FloatArray | None = None,
+    tree: list[tuple[int, int, int]] | None = None,
+) -> FloatArray:
+    """Panel poses for given crease fold angles, composed along a spanning tree.
+
+    Parameters
+    ----------
+    pattern : CreasePattern
+    angles : (m,) float, rad
+        Signed fold angle of every crease (ignored for creases not in the tree).
+    base : int, optional
+        Fixed panel; default :func:`default_base_panel`.
+    axis_points, axis_dirs : (m, 3) float, optional
+        Hinge axis per crease in the flat sheet frame (mm), for thickness methods whose hinges
+        are off the reference surface; default the crease line at z = 0 with the crease's
+        forward direction. ``axis_dirs`` must point along the crease's forward direction.
+    tree : list of (parent, child, crease), optional
+        Precomputed :func:`spanning_tree`.
+
+    Returns
+    -------
+    (P, 4, 4) float
+    """
+    if base is None:
+        base = default_base_panel(pattern)
+    if tree is None:
+        tree = spanning_tree(pattern, base)
+    cp = pattern.crease_panels
+    poses = np.empty((pattern.n_panels, 4, 4))
+    poses[base] = np.eye(4)
+    for a, b, c in tree:
+        if axis_points is not None and axis_dirs is not None:
+            pt, d = axis_points[c], axis_dirs[c]
+        else:
+            pt, d = _hinge_axis(pattern, c)
+        # which side of the forward direction is the child on?
+        left = int(cp[c, 0]) == b
+        if not left and int(cp[c, 1]) != b:
+            # seam: child is on the far crease; use its own side on that crease
+            seam = next(s for s in pattern.seams if s.a == c)
+            left = int(cp[seam.b, 0]) == b
+            pa, da = _hinge_axis(pattern, seam.b)
+            rot = rotation_about_line(pa, da, angles[c] if left else -angles[c])
+            # bring child's seam edge onto the parent's: the seam-b edge maps onto seam-a edge
+            poses[b] = poses[a] @ _edge_map(pattern, seam.a, seam.b) @ rot
+            continue
+        rot = rotation_about_line(pt, d, angles[c] if left else -angles[c])
+        poses[b] = poses[a] @ rot
+    return poses
+
+
+def _edge_map(pattern: CreasePattern, ca: int, cb: int) -> FloatArray:
+    """Rigid planar motion taking crease ``cb`` onto crease ``ca`` vertex for vertex."""
+    va = pattern.vertices[pattern.creases[ca]]
+    vb = pattern.vertices[pattern.creases[cb]]
+    da = va[1] - va[0]
+    db = vb[1] - vb[0]
+    ang = np.arctan2(da[1], da[0]) - np.arctan2(db[1], db[0])
+    c, s = np.cos(ang), np.sin(ang)
+    t = np.eye(4)
+    t[:2, :2] = [[c, -s], [s, c]]
+    t[:2, 3] = va[0] - t[:2, :2] @ vb[0]
+    return t
+
+
+def closure_error(pattern: CreasePattern, angles: FloatArray, poses: FloatArray) -> float:
+    """Largest mismatch of poses across creases not in the tree (and seams).
+
+    For every folding crease between panels A and B, the pose of B must equal A's pose times the
+    hinge rotation. Returns the largest absolute difference of the 4x4 entries (translation part
+    divided by the sheet size so the number is dimensionless).
+    """
+    cp = pattern.crease_panels
+    ext = np.ptp(pattern.vertices, axis=0).max() or 1.0
+    worst = 0.0
+    g = pattern.panel_graph
+    for a, b, data in g.edges(data=True):
+        c = data["crease"]
+        if "seam" in data:
+            seam = next(s for s in pattern.seams if s.a == c)
+            pa_, pb_ = (a, b) if int(max(cp[c])) == a else (b, a)
+            left_b = int(cp[seam.b, 0]) == pb_
+            p0, d0 = _hinge_axis(pattern, seam.b)
+            rot = rotation_about_line(p0, d0, angles[c] if left_b else -angles[c])
+            expect = poses[pa_] @ _edge_map(pattern, seam.a, seam.b) @ rot
+            diff = expect - poses[pb_]
+        else:
+            p0, d0 = _hinge_axis(pattern, c)
+            left = int(cp[c, 0]) == b
+            rot = rotation_about_line(p0, d0, angles[c] if left else -angles[c])
+            diff = poses[a] @ rot - poses[b]
+        diff[:3, 3] /= ext
+        worst = max(worst, float(np.abs(diff).max()))
+    return worst
+
+
+@dataclass(frozen=True)
+class FoldState:
+    """One configuration of the sheet.
+
+    Attributes
+    ----------
+    pattern : CreasePattern
+    angles : (m,) float, rad
+        Signed fold angle of every crease (0 for border, cut and flat creases).
+    poses : (P, 4, 4) float
+        Pose of every panel (flat sheet frame -> folded position), mm.
+    t : float
+        Fold fraction in [0, 1] along the path (NaN for a free-standing state).
+    closure_error : float
+        Largest residual of the loop-closure constraints (see :func:`closure_error`).
+    base_panel : int
+    """
+
+    pattern: CreasePattern
+    angles: FloatArray
+    poses: FloatArray
+    t: float = float("nan")
+    closure_error: float = 0.0
+    base_panel: int = 0
+
+    def panel_vertices_3d(self, p: int) -> FloatArray:
+        """(k, 3) float, mm: panel ``p``'s corners in the folded position."""
+        poly = self.pattern.panel_polygon(p)
+        h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
+        return (h @ self.poses[p].T)[:, :3]
+
+    def transform(self, p: int, points: FloatArray) -> FloatArray:
+        """Map (k, 3) points of panel ``p``'s flat frame to the folded position (mm)."""
+        pts = np.asarray(points, dtype=float)
+        return pts @ self.poses[p][:3, :3].T + self.poses[p][:3, 3]
+
+
+def fold_state_from_angles(
+    pattern: CreasePattern, angles: FloatArray, *, base: int | None = None, t: float = float("nan")
+) -> FoldState:
+    """A :class:`FoldState` for given crease angles, with its closure error computed."""
+    ang = np.asarray(angles, dtype=float).copy()
+    if ang.shape != (pattern.n_creases,):
+        raise FoldError(f"angles must have one entry per crease ({pattern.n_creases}); got shape {ang.shape}")
+    if base is None:
+        base = default_base_panel(pattern)
+    poses = compose_poses(pattern, ang, base=base)
+    err = closure_error(pattern, ang, poses)
+    ang.setflags(write=False)
+    poses.setflags(write=False)
+    return FoldState(pattern, ang, poses, t=t, closure_error=err, base_panel=base)
+
+
+@dataclass(frozen=True)
+class FoldPath:
+    """Sampled fold states from deployed (t = 0) towards stowed (t = 1).
+
+    Attributes
+    ----------
+    states : tuple of FoldState
+        Ordered by increasing fold fraction.
+    stop_reason : str
+        Why path following stopped: ``target``, ``lock``, ``contact`` or ``request``.
+    driver : str
+        What drove the path (``C012`` for a crease, ``t`` for fold fraction).
+    """
+
+    states: tuple[FoldState, ...]
+    stop_reason: str = "target"
+    driver: str = "t"
+    meta: dict = field(default_factory=dict, compare=False)
+
+    @property
+    def fractions(self) -> FloatArray:
+        """(k,) float: fold fraction of every sampled state."""
+        return np.array([s.t for s in self.states])
+
+    def at(self, t: float) -> FoldState:
+        """State at fold fraction ``t`` in [0, 1], linearly interpolating crease angles.
+
+        The interpolated angles are re-composed into poses; use the kinematics solver's
+        ``refine`` to project onto the constraint manifold when exact closure matters.
+        """
+        if not (0.0 <= t <= 1.0):
+            lo, hi = self.fractions[[0, -1]]
+            raise FoldError(f"fold fraction t = {t} is outside [0, 1] (this path covers {lo:g}..{hi:g})")
+        ts = self.fractions
+        if t <= ts[0]:
+            return self.states[0]
+        if t >= ts[-1]:
+            return self.states[-1]
+        k = int(np.searchsorted(ts, t))
+        s0, s1 = self.states[k - 1], self.states[k]
+        w = (t - s0.t) / (s1.t - s0.t)
+        ang = (1 - w) * s0.angles + w * s1.angles
+        return fold_state_from_angles(s0.pattern, ang, base=s0.base_panel, t=t)
+
+
+def tree_creases(tree: list[tuple[int, int, int]]) -> IntArray:
+    """Crease indices used by a spanning tree."""
+    return np.array([c for _, _, c in tree], dtype=np.int64)
+
+
+_ = nx  # networkx graphs are the panel_graph type used above
