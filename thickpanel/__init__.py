@@ -15,8 +15,8 @@ from .errors import (
     GeometryError,
     HingeError,
     PatternError,
-    ThickpanelError,
     ThicknessError,
+    ThickpanelError,
 )
 from .pattern import CreasePattern, Finding, Panel, Seam, cid, pid, vid
 from .tolerances import DEFAULT_TOL, Tolerances

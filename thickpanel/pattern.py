@@ -22,7 +22,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import cached_property
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, SupportsInt
 
 import networkx as nx
 import numpy as np
@@ -51,17 +51,17 @@ KINDS: tuple[str, ...] = ("mountain", "valley", "border", "cut", "flat")
 FOLDING_KINDS: frozenset[str] = frozenset({"mountain", "valley"})
 
 
-def vid(i: int) -> str:
+def vid(i: SupportsInt) -> str:
     """Stable id of vertex ``i``, e.g. ``V012``."""
     return f"V{int(i):03d}"
 
 
-def cid(i: int) -> str:
+def cid(i: SupportsInt) -> str:
     """Stable id of crease ``i``, e.g. ``C042``."""
     return f"C{int(i):03d}"
 
 
-def pid(i: int) -> str:
+def pid(i: SupportsInt) -> str:
     """Stable id of panel ``i``, e.g. ``P017``."""
     return f"P{int(i):03d}"
 

@@ -40,7 +40,9 @@ def structural_findings(cp: CreasePattern) -> list[Finding]:
     bad_v = np.nonzero(~np.all(np.isfinite(v), axis=1))[0]
     for i in bad_v[:20]:
         out.append(
-            Finding("nonfinite", (vid(i),), None, f"vertex {vid(i)} has a non-finite coordinate {tuple(v[i])}")
+            Finding(
+                "nonfinite", (vid(i),), None, f"vertex {vid(i)} has a non-finite coordinate {tuple(v[i])}"
+            )
         )
     n = len(v)
     bad_c = np.nonzero(np.any((c < 0) | (c >= n), axis=1))[0]
@@ -66,12 +68,19 @@ def structural_findings(cp: CreasePattern) -> list[Finding]:
             )
     ta = cp.target_angles
     for k in np.nonzero(np.isinf(ta))[0][:20]:
-        out.append(Finding("target_angle", (cid(k),), None, f"crease {cid(k)} target angle {ta[k]} is not finite"))
+        out.append(
+            Finding("target_angle", (cid(k),), None, f"crease {cid(k)} target angle {ta[k]} is not finite")
+        )
     for s in cp.seams:
         for x in (s.a, s.b):
             if not (0 <= x < len(c)):
                 out.append(
-                    Finding("seam", (cid(x),), None, f"seam refers to crease {cid(x)}; valid creases are 0..{len(c) - 1}")
+                    Finding(
+                        "seam",
+                        (cid(x),),
+                        None,
+                        f"seam refers to crease {cid(x)}; valid creases are 0..{len(c) - 1}",
+                    )
                 )
     return out
 
@@ -152,7 +161,9 @@ def _topology_findings(cp: CreasePattern) -> list[Finding]:
     n = cp.n_vertices
     deg = np.bincount(c.reshape(-1), minlength=n)
     for i in np.nonzero(deg == 0)[0][:20]:
-        out.append(Finding("isolated", (vid(i),), _pt(v[i]), f"vertex {vid(i)} at {_fmt(v[i])} has no crease"))
+        out.append(
+            Finding("isolated", (vid(i),), _pt(v[i]), f"vertex {vid(i)} at {_fmt(v[i])} has no crease")
+        )
     for i in np.nonzero(deg == 1)[0][:20]:
         k = int(np.nonzero(np.any(c == i, axis=1))[0][0])
         out.append(
@@ -264,7 +275,14 @@ def _topology_findings(cp: CreasePattern) -> list[Finding]:
     for s in cp.seams:
         for x in (s.a, s.b):
             if kinds[x] != "border":
-                out.append(Finding("seam", (cid(x),), None, f"seam crease {cid(x)} must be of kind 'border', not {kinds[x]!r}"))
+                out.append(
+                    Finding(
+                        "seam",
+                        (cid(x),),
+                        None,
+                        f"seam crease {cid(x)} must be of kind 'border', not {kinds[x]!r}",
+                    )
+                )
         la, lb = cp.crease_lengths[s.a], cp.crease_lengths[s.b]
         if abs(la - lb) > tol.merge * 10:
             out.append(
@@ -276,14 +294,29 @@ def _topology_findings(cp: CreasePattern) -> list[Finding]:
                 )
             )
         if s.kind not in ("mountain", "valley"):
-            out.append(Finding("seam", (cid(s.a),), None, f"seam at {cid(s.a)} has kind {s.kind!r}; use mountain or valley"))
+            out.append(
+                Finding(
+                    "seam",
+                    (cid(s.a),),
+                    None,
+                    f"seam at {cid(s.a)} has kind {s.kind!r}; use mountain or valley",
+                )
+            )
         if max(cp_[s.a]) < 0 or max(cp_[s.b]) < 0:
-            out.append(Finding("seam", (cid(s.a), cid(s.b)), None, f"seam creases {cid(s.a)}/{cid(s.b)} bound no panel"))
+            out.append(
+                Finding(
+                    "seam", (cid(s.a), cid(s.b)), None, f"seam creases {cid(s.a)}/{cid(s.b)} bound no panel"
+                )
+            )
     # sign of target angles
     ta = cp.target_angles
-    for k in np.nonzero(np.isfinite(ta))[0]:
+    for k in np.nonzero(np.isfinite(ta))[0].tolist():
         kind = kinds[k]
-        if abs(ta[k]) > np.pi + tol.angle or (kind == "valley" and ta[k] < 0) or (kind == "mountain" and ta[k] > 0):
+        if (
+            abs(ta[k]) > np.pi + tol.angle
+            or (kind == "valley" and ta[k] < 0)
+            or (kind == "mountain" and ta[k] > 0)
+        ):
             out.append(
                 Finding(
                     "target_angle",
@@ -303,6 +336,9 @@ def find_problems(cp: CreasePattern) -> list[Finding]:
         return found
     found = _geometry_findings(cp)
     # crossing creases make the faces meaningless; report them before face-based checks
-    if any(f.kind in ("crossing", "t_junction", "overlap", "zero_length", "coincident", "duplicate") for f in found):
+    if any(
+        f.kind in ("crossing", "t_junction", "overlap", "zero_length", "coincident", "duplicate")
+        for f in found
+    ):
         return found
     return found + _topology_findings(cp)
