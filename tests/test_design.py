@@ -1,0 +1,210 @@
+"""Design-file loading and validation (thickpanel.design).
+
+Outside sources: the TOML v1.0.0 specification (Preston-Werner et al., https://toml.io/en/v1.0.0)
+decides what is valid TOML and which types values have; Python's ``tomllib`` documentation
+(Python 3.11 standard library) gives the "(at line L, column C)" position of a syntax error;
+``difflib.get_close_matches`` (Python standard library, Ratcliff/Obershelp "gestalt pattern
+matching", Dr. Dobb's Journal 1988) ranks the suggested key; the degree/radian conversion is the SI
+definition (BIPM, *The International System of Units*, 9th ed. 2019, table 4: 1 deg = pi/180 rad).
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import pytest
+
+from thickpanel import CreasePattern, DesignFileError
+from thickpanel.design import SCHEMA, load_design, loads_design, schema_markdown
+
+MINI = """
+name = "mini"
+[layout]
+family = "miura"
+a = 20.0
+b = 20.0
+gamma_deg = 70.0
+nx = 2
+ny = 2
+[panels]
+thickness = 3.0
+"""
+
+
+def load(text: str, **kw):
+    return loads_design(text, check_layout=kw.pop("check_layout", False), **kw)
+
+
+def test_defaults_and_units():
+    d = load(MINI)
+    assert d.name == "mini"
+    assert d.panels.thickness == 3.0
+    assert d.fold.target_deg == 170.0
+    # SI brochure (BIPM 2019) table 4: 1 degree = pi/180 rad.
+    assert d.fold.target == pytest.approx(170.0 * math.pi / 180.0, rel=1e-15)
+    assert d.exports.states == (0.0, 1.0)
+    assert d.method.name == "auto"
+    assert d.hinge.style == "none"
+
+
+def test_design_is_frozen():
+    d = load(MINI)
+    with pytest.raises(AttributeError):
+        d.name = "other"  # type: ignore[misc]
+    with pytest.raises(TypeError):
+        d.layout.params["a"] = 1.0  # type: ignore[index]
+
+
+def test_toml_syntax_error_gives_line_and_column():
+    # TOML v1.0.0: a bare value with no closing quote is invalid; tomllib reports line and column.
+    with pytest.raises(DesignFileError, match=r"TOML syntax error.*line 3, column"):
+        load('[layout]\nfamily = "miura"\nnx = "2\n')
+
+
+def test_unknown_key_suggests_nearest():
+    with pytest.raises(DesignFileError, match=r"unknown key \[panels\] thicknes; did you mean 'thickness'"):
+        load(MINI.replace("thickness = 3.0", "thicknes = 3.0"))
+
+
+def test_unknown_section_suggests_nearest():
+    with pytest.raises(DesignFileError, match=r"unknown section \[hinges\]; did you mean 'hinge'"):
+        load(MINI + "[hinges]\nstyle = 'none'\n")
+
+
+def test_unknown_top_level_key():
+    with pytest.raises(DesignFileError, match=r"unknown top-level key 'nme'; did you mean 'name'"):
+        load('nme = "x"\n' + MINI.replace('name = "mini"', ""))
+
+
+def test_missing_required_key_names_section():
+    with pytest.raises(DesignFileError, match=r"\[panels\] thickness is missing: section \[panels\] needs"):
+        load(MINI.replace("thickness = 3.0", 'material = ""'))
+    with pytest.raises(DesignFileError, match=r"section \[layout\] is missing"):
+        load("[panels]\nthickness = 2.0\n")
+
+
+@pytest.mark.parametrize(
+    "section,line,pattern",
+    [
+        ("fold", "target_deg = 200.0", r"\[fold\] target_deg = 200 deg is out of range; allowed: 0 < value <= 180 deg"),
+        ("fold", "target_deg = 0", r"\[fold\] target_deg = 0 deg is out of range"),
+        ("fold", "states = 1", r"\[fold\] states = 1 is out of range; allowed: 2 <= value <= 2000"),
+        # TOML v1.0.0: 60.0 is a float, so it is not a whole number.
+        ("fold", "states = 60.0", r"\[fold\] states = 60.0 must be a whole number"),
+        ("fold", 'target_deg = "90"', r"\[fold\] target_deg = '90' must be a number in deg"),
+        # TOML v1.0.0: true is a boolean, never a number.
+        ("fold", "target_deg = true", r"must be a number"),
+        ("fold", "target_deg = nan", r"must be finite"),
+        ("exports", "states = [0.0, 1.5]", r"\[exports\] states: item 1.5 is out of range; allowed: 0 <= value <= 1"),
+        ("exports", 'formats = "step"', r"\[exports\] formats = 'step' must be a list"),
+        ("checks", "require_rigid = 1", r"\[checks\] require_rigid = 1 must be true or false"),
+        ("fold", 'driver = "P003"', r"\[fold\] driver = 'P003' is not a crease id"),
+    ],
+)
+def test_bad_values_name_key_value_and_range(section, line, pattern):
+    with pytest.raises(DesignFileError, match=pattern):
+        load(MINI + f"[{section}]\n{line}\n")
+
+
+def test_thickness_range_message():
+    msg = r"\[panels\] thickness = -1 mm is out of range; allowed: 0 < value <= 1000 mm"
+    with pytest.raises(DesignFileError, match=msg):
+        load(MINI.replace("thickness = 3.0", "thickness = -1"))
+
+
+def test_pin_diameter_must_fit_thickness():
+    # 3.0 mm panel, 0.4 mm walls on both sides (common-practice printed wall, one 0.4 mm extrusion):
+    # largest pin 3.0 - 2 * 0.4 = 2.2 mm.
+    msg = r"\[hinge\] pin_diameter = 4 mm does not fit panels 3 mm thick \(largest: 2.2 mm"
+    with pytest.raises(DesignFileError, match=msg):
+        load(MINI + '[hinge]\nstyle = "knuckle"\npin_diameter = 4.0\n')
+    d = load(MINI + '[hinge]\nstyle = "knuckle"\npin_diameter = 2.0\nknuckles = 3\n')
+    assert dict(d.hinge.options) == {"pin_diameter": 2.0, "knuckles": 3}
+
+
+def test_layout_needs_exactly_one_source(tmp_path):
+    with pytest.raises(DesignFileError, match=r"exactly one of 'family'"):
+        load("[layout]\nnx = 3\n[panels]\nthickness = 1.0\n")
+    with pytest.raises(DesignFileError, match=r"got both"):
+        load('[layout]\nfamily = "miura"\npattern = "x.json"\n[panels]\nthickness = 1.0\n')
+
+
+def test_missing_pattern_file(tmp_path):
+    f = tmp_path / "d.toml"
+    f.write_text('[layout]\npattern = "nowhere.json"\n[panels]\nthickness = 1.0\n')
+    with pytest.raises(DesignFileError, match=r"\[layout\] pattern = 'nowhere.json': file not found"):
+        load_design(f)
+
+
+def test_pattern_suffix_checked(tmp_path):
+    (tmp_path / "p.svg").write_text("<svg/>")
+    f = tmp_path / "d.toml"
+    f.write_text('[layout]\npattern = "p.svg"\n[panels]\nthickness = 1.0\n')
+    with pytest.raises(DesignFileError, match=r"suffix '.svg' is not supported; allowed: .json, .dxf"):
+        load_design(f)
+
+
+def test_missing_design_file(tmp_path):
+    with pytest.raises(DesignFileError, match="not found"):
+        load_design(tmp_path / "absent.toml")
+
+
+def test_name_defaults_to_stem_and_paths_are_relative(tmp_path):
+    f = tmp_path / "sub" / "roof.toml"
+    f.parent.mkdir()
+    f.write_text(MINI.replace('name = "mini"', "") + '[exports]\nfolder = "out"\n')
+    d = load_design(f, check_layout=False)
+    assert d.name == "roof"
+    assert d.exports.folder == (tmp_path / "sub" / "out").resolve()
+
+
+def test_layout_parameters_checked_against_generator():
+    pytest.importorskip("thickpanel.layouts.classic")
+    msg = r"unknown key \[layout\] gama_deg for family 'miura'; did you mean 'gamma_deg'"
+    with pytest.raises(DesignFileError, match=msg):
+        loads_design(MINI.replace("gamma_deg", "gama_deg"))
+    with pytest.raises(DesignFileError, match=r"\[layout\] ny is missing: family 'miura' needs key 'ny'"):
+        loads_design(MINI.replace("ny = 2", ""))
+    with pytest.raises(DesignFileError, match=r"family = 'miur' is not a registered layout; did you mean 'miura'"):
+        loads_design(MINI.replace('"miura"', '"miur"'))
+
+
+def test_make_pattern_and_overrides():
+    pytest.importorskip("thickpanel.layouts.classic")
+    d = loads_design(MINI + '[[panels.override]]\npanels = ["P000"]\nthickness = 5.0\n')
+    cp = d.make_pattern()
+    assert isinstance(cp, CreasePattern)
+    assert cp.n_panels == 4
+    th = d.panel_thickness(cp)
+    assert isinstance(th, dict)
+    assert th[0] == 5.0 and th[1] == 3.0
+    bad = loads_design(MINI + '[[panels.override]]\npanels = ["P099"]\nthickness = 5.0\n')
+    with pytest.raises(DesignFileError, match=r"'P099' is not a panel of this pattern \(P000..P003\)"):
+        bad.panel_thickness(cp)
+
+
+def test_generator_refusal_becomes_design_error():
+    pytest.importorskip("thickpanel.layouts.classic")
+    d = loads_design(MINI.replace("gamma_deg = 70.0", "gamma_deg = 95.0"))
+    with pytest.raises(DesignFileError, match=r"\[layout\] family = 'miura'.*gamma"):
+        d.make_pattern()
+
+
+def test_override_needs_selector_and_change():
+    with pytest.raises(DesignFileError, match=r"#1 needs 'panels'"):
+        load(MINI + "[[panels.override]]\nthickness = 5.0\n")
+    with pytest.raises(DesignFileError, match=r"#1 changes nothing"):
+        load(MINI + '[[panels.override]]\npanels = ["P001"]\n')
+    with pytest.raises(DesignFileError, match=r"radius = \[5.0, 1.0\] must be \[low, high\]"):
+        load(MINI + "[[panels.override]]\nradius = [5.0, 1.0]\nthickness = 2.0\n")
+
+
+def test_every_schema_key_is_documented():
+    doc = Path(__file__).resolve().parents[1] / "docs" / "design-file.md"
+    text = doc.read_text()
+    # the generated block in the reference page is exactly what the schema gives today
+    assert schema_markdown() in text, "regenerate: python -m thickpanel.design --write docs/design-file.md"
+    for k in SCHEMA:
+        assert f"| `{k.name}` |" in text
+        assert k.unit is not None and k.doc
