@@ -1,0 +1,1 @@
+"""Checks against published sources (each test names its source beside the check)."""
