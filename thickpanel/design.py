@@ -294,14 +294,26 @@ class Design:
                 import importlib
 
                 io = importlib.import_module(f"{__package__}.io")
+                if not hasattr(io, "read_pattern"):
+                    raise DesignFileError(f"{self._where()}[layout] pattern = {str(lay.pattern)!r}: pattern "
+                                          "import (thickpanel.io.read_pattern) is not available in this installation")
                 if lay.pattern.suffix.lower() == ".dxf" and lay.dxf_layers:
                     cp = io.read_dxf(lay.pattern, layers=dict(lay.dxf_layers))
                 else:
                     cp = io.read_pattern(lay.pattern)
             else:
-                from .layouts import make_layout
+                from .layouts import get_layout
 
-                cp = make_layout(str(lay.family), **dict(lay.params))
+                fn = get_layout(str(lay.family))
+                params = dict(lay.params)
+                try:
+                    if "name" in inspect.signature(fn).parameters and "name" not in params:
+                        params["name"] = self.name
+                except (TypeError, ValueError):
+                    pass
+                cp = fn(**params)
+        except DesignFileError:
+            raise
         except ThickpanelError as exc:
             what = f"pattern = {str(lay.pattern)!r}" if lay.pattern else f"family = {lay.family!r}"
             raise DesignFileError(f"{self._where()}[layout] {what}: {exc}") from exc

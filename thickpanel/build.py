@@ -1,0 +1,537 @@
+"""Orchestration: design -> pattern -> foldability -> fold path -> thickness plan -> clearance ->
+solids -> exports -> report.
+
+Each stage calls its module through the agreed public names. A stage whose module is not installed
+is recorded as ``not available`` with the reason; no stand-in result is ever produced. A stage that
+refuses the design (a method that does not apply, a fold that locks, a clearance below the design's
+threshold) makes a failing *check*; input errors (bad design values, an unreadable pattern file, an
+unknown hinge or method option) raise :class:`~thickpanel.errors.DesignFileError`.
+
+The public functions return a JSON-ready summary ``dict`` (the command line's ``--json`` output):
+``{"design", "source", "command", "ok", "stages": [...], "checks": [...], "metrics": {...},
+"outputs": [...], "report"}``.
+"""
+
+from __future__ import annotations
+
+import importlib
+import inspect
+import logging
+import math
+import time
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .design import Design, suggest
+from .errors import DesignFileError, HingeError, ThickpanelError
+
+__all__ = ["BuildResult", "run_pipeline", "run_check", "run_fold", "run_build", "run_report",
+           "default_out_dir", "Progress"]
+
+log = logging.getLogger("thickpanel")
+
+Progress = Callable[[str, int, int], None]
+"""Progress callback ``(label, done, total)``; called at the start (0) and end of long steps."""
+
+ORDER = ("pattern", "foldability", "rigidity", "fold path", "method", "clearance", "solids",
+         "exports", "drawings", "report")
+
+
+@dataclass
+class BuildResult:
+    """Everything a pipeline run produced; ``None`` for stages not run or not available."""
+
+    design: Design
+    command: str
+    pattern: Any = None
+    foldability: Any = None
+    rigid: Any = None
+    path: Any = None
+    advice: list[Any] = field(default_factory=list)
+    plan: Any = None
+    clearance: Any = None
+    parts: Any = None
+    stages: list[dict[str, Any]] = field(default_factory=list)
+    checks: list[dict[str, Any]] = field(default_factory=list)
+    metrics: dict[str, Any] = field(default_factory=dict)
+    outputs: list[Path] = field(default_factory=list)
+    report: Path | None = None
+    out_dir: Path | None = None
+
+    @property
+    def ok(self) -> bool:
+        """True when no check failed."""
+        return not any(c["verdict"] == "fail" for c in self.checks)
+
+    def check(self, name: str, verdict: str, detail: str) -> None:
+        """Record a check; verdict is ``pass``, ``fail``, ``warn``, ``info`` or ``n/a``."""
+        self.checks.append({"check": name, "verdict": verdict, "detail": detail})
+
+    def summary(self) -> dict[str, Any]:
+        """JSON-ready summary (paths as strings)."""
+        return {
+            "design": self.design.name,
+            "source": str(self.design.source) if self.design.source else None,
+            "command": self.command,
+            "ok": self.ok,
+            "stages": self.stages,
+            "checks": self.checks,
+            "metrics": _jsonable(self.metrics),
+            "outputs": [str(p) for p in self.outputs],
+            "report": str(self.report) if self.report else None,
+            "out_dir": str(self.out_dir) if self.out_dir else None,
+        }
+
+
+def _jsonable(x: Any) -> Any:
+    if isinstance(x, dict):
+        return {str(k): _jsonable(v) for k, v in x.items()}
+    if isinstance(x, list | tuple):
+        return [_jsonable(v) for v in x]
+    if isinstance(x, np.generic):
+        return x.item()
+    if isinstance(x, float) and not math.isfinite(x):
+        return None
+    if isinstance(x, Path):
+        return str(x)
+    return x
+
+
+def _api(module: str, name: str) -> tuple[Any, str]:
+    """``(callable, "")`` or ``(None, reason)`` when ``thickpanel.<module>.<name>`` is missing."""
+    full = module if module.startswith("hinges") else f"thickpanel.{module}"
+    try:
+        mod = importlib.import_module(full)
+    except ModuleNotFoundError as exc:
+        if exc.name and (full == exc.name or full.startswith(exc.name + ".")):
+            return None, f"module {full} is not available in this installation"
+        raise
+    fn = getattr(mod, name, None)
+    if fn is None:
+        return None, f"{full}.{name} is not available in this installation"
+    return fn, ""
+
+
+def default_out_dir(design: Design) -> Path:
+    """``[exports] folder`` when given, else ``exports/<name>`` in the current directory."""
+    return design.exports.folder or (Path.cwd() / "exports" / design.name)
+
+
+class _Run:
+    def __init__(self, res: BuildResult, progress: Progress | None):
+        self.res = res
+        self.progress = progress
+        self.blocked: str | None = None
+
+    @contextmanager
+    def stage(self, name: str) -> Iterator[dict[str, Any]]:
+        rec: dict[str, Any] = {"stage": name, "status": "ok", "note": ""}
+        self.res.stages.append(rec)
+        if self.progress:
+            self.progress(name, 0, 1)
+        t0 = time.perf_counter()
+        try:
+            yield rec
+        finally:
+            rec["seconds"] = round(time.perf_counter() - t0, 3)
+            if self.progress:
+                self.progress(name, 1, 1)
+
+    def skip(self, name: str, status: str, note: str) -> None:
+        self.res.stages.append({"stage": name, "status": status, "note": note, "seconds": 0.0})
+
+
+def _deg(x: float) -> float:
+    return float(np.degrees(x))
+
+
+def run_pipeline(
+    design: Design,
+    *,
+    command: str = "build",
+    out_dir: Path | None = None,
+    at: float | None = None,
+    stages: tuple[str, ...] = ORDER,
+    formats: tuple[str, ...] | None = None,
+    progress: Progress | None = None,
+) -> BuildResult:
+    """Run the stages named in ``stages`` (in pipeline order) and collect the results.
+
+    Parameters
+    ----------
+    design : Design
+    command : str
+        Label stored in the summary (``check``, ``fold``, ``build``, ``report``).
+    out_dir : Path, optional
+        Output folder (default :func:`default_out_dir`).
+    at : float, optional
+        Export only this fold fraction instead of ``[exports] states``.
+    stages : tuple of str
+        Subset of :data:`ORDER` to run.
+    formats : tuple of str, optional
+        Override ``[exports] formats``.
+    progress : callable, optional
+        See :data:`Progress`.
+    """
+    res = BuildResult(design=design, command=command)
+    run = _Run(res, progress)
+    want = set(stages)
+    res.out_dir = Path(out_dir) if out_dir else default_out_dir(design)
+
+    # -- pattern (input errors propagate as DesignFileError)
+    with run.stage("pattern") as rec:
+        cp = design.make_pattern()
+        res.pattern = cp
+        probs = cp.problems()
+        rec["note"] = f"{cp.n_panels} panels, {cp.n_creases} creases, {cp.n_vertices} vertices"
+        res.metrics.update(panels=cp.n_panels, creases=cp.n_creases, vertices=cp.n_vertices,
+                           deployed_area_mm2=float(sum(p.area for p in cp.panels)))
+        if probs:
+            res.check("pattern valid", "fail", "; ".join(str(p) for p in probs[:5]))
+            run.blocked = "the pattern is not valid"
+        else:
+            res.check("pattern valid", "pass", rec["note"])
+    thickness = design.panel_thickness(cp)
+    target = design.fold.target
+
+    if "foldability" in want:
+        _foldability(run, cp)
+    if "rigidity" in want:
+        _rigidity(run, cp)
+    if "fold path" in want:
+        _fold_path(run, cp, target)
+    if "method" in want:
+        _method(run, cp, thickness, target)
+    if "clearance" in want:
+        _clearance(run)
+    _envelope(res)
+    if "solids" in want:
+        _solids(run)
+    if "exports" in want:
+        states = (at,) if at is not None else design.exports.states
+        _exports(run, states, formats or design.exports.formats)
+    if "drawings" in want and (design.exports.drawings or command == "report"):
+        fn, why = _api("export.drawing", "write_drawings")
+        if fn is None:
+            run.skip("drawings", "not available", why)
+        else:
+            with run.stage("drawings") as rec:
+                paths = fn(cp, res.out_dir, design.name)
+                res.outputs += [Path(p) for p in paths]
+                rec["note"] = f"{len(paths)} files"
+    if "report" in want and (design.exports.report or command == "report"):
+        fn, why = _api("export.report", "write_report")
+        if fn is None:
+            run.skip("report", "not available", why)
+        else:
+            with run.stage("report") as rec:
+                res.report = fn(res, res.out_dir / f"{design.name}-report.html")
+                res.outputs.append(res.report)
+                rec["note"] = str(res.report)
+    return res
+
+
+def _foldability(run: _Run, cp: Any) -> None:
+    res, d = run.res, run.res.design
+    fn, why = _api("foldability", "check_foldability")
+    if fn is None:
+        run.skip("foldability", "not available", why)
+        res.check("flat-foldable vertices", "n/a", why)
+        return
+    with run.stage("foldability") as rec:
+        rep = fn(cp)
+        res.foldability = rep
+        text = rep.summary() if hasattr(rep, "summary") else str(rep)
+        rec["note"] = text.splitlines()[0] if text else ""
+        failing = list(getattr(rep, "failing", []) or [])
+        if rep.ok:
+            res.check("flat-foldable vertices", "pass", rec["note"])
+        else:
+            verdict = "fail" if d.checks.require_flat_foldable else "warn"
+            ids = ", ".join(str(v) for v in failing[:8]) + (" ..." if len(failing) > 8 else "")
+            res.check("flat-foldable vertices", verdict, f"{len(failing)} vertices fail: {ids}. {rec['note']}")
+
+
+def _rigidity(run: _Run, cp: Any) -> None:
+    res, d = run.res, run.res.design
+    fn, why = _api("kinematics", "rigid_foldability")
+    if fn is None:
+        run.skip("rigidity", "not available", why)
+        res.check("rigid-foldable", "n/a", why)
+        return
+    with run.stage("rigidity") as rec:
+        v = fn(cp)
+        res.rigid = v
+        where = ", ".join(str(w) for w in list(getattr(v, "where", ()) or ())[:8])
+        rec["note"] = f"{v.kind}" + (f", {v.dof} degree(s) of freedom" if v.kind == "rigid" else "")
+        detail = rec["note"] + (f"; {v.reason}" if getattr(v, "reason", "") else "") + (f" at {where}" if where else "")
+        res.metrics["rigid"] = v.kind
+        if v.kind == "rigid":
+            res.check("rigid-foldable", "pass", detail)
+        else:
+            res.check("rigid-foldable", "fail" if d.checks.require_rigid else "warn", detail)
+
+
+def _fold_path(run: _Run, cp: Any, target: float) -> None:
+    res, d = run.res, run.res.design
+    if run.blocked:
+        run.skip("fold path", "blocked", run.blocked)
+        return
+    fn, why = _api("kinematics", "fold_path")
+    if fn is None:
+        run.skip("fold path", "not available", why)
+        res.check("fold path", "n/a", why)
+        return
+    kw: dict[str, Any] = {"target": target, "n_states": d.fold.states}
+    if d.fold.driver:
+        n = cp.n_creases
+        k = int(d.fold.driver[1:])
+        if k >= n:
+            raise DesignFileError(f"[fold] driver = {d.fold.driver!r}: no such crease (C000..C{n - 1:03d})")
+        kw["driver"] = k
+    with run.stage("fold path") as rec:
+        try:
+            path = fn(cp, **kw)
+        except ThickpanelError as exc:
+            rec["status"] = "failed"
+            rec["note"] = str(exc)
+            res.check("fold path", "fail", str(exc))
+            run.blocked = "no fold path"
+            return
+        res.path = path
+        reach = max(float(np.abs(s.angles).max()) if len(s.angles) else 0.0 for s in path.states)
+        err = max(float(s.closure_error) for s in path.states)
+        res.metrics.update(fold_states=len(path.states), reached_fold_deg=_deg(reach),
+                           closure_error=err, stop_reason=path.stop_reason)
+        rec["note"] = (f"{len(path.states)} states, reached {_deg(reach):.1f} of {d.fold.target_deg:g} deg, "
+                       f"stop: {path.stop_reason}")
+        short = reach < target * (1 - 1e-3)
+        res.check("fold reaches target", "warn" if short else "pass", rec["note"])
+
+
+def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
+    res, d = run.res, run.res.design
+    if run.blocked:
+        run.skip("method", "blocked", run.blocked)
+        return
+    advise, why = _api("thickness", "methods_for")
+    make, why2 = _api("thickness", "make_plan")
+    if make is None or advise is None:
+        run.skip("method", "not available", why or why2)
+        res.check("thickness method", "n/a", why or why2)
+        return
+    with run.stage("method") as rec:
+        advice = list(advise(cp, target, thickness=thickness, path=res.path))
+        res.advice = advice
+        names = [a.method for a in advice]
+        for a in advice:
+            res.check(f"method {a.method}", "info" if a.applies else "n/a",
+                      ("applies" if a.applies else "does not apply") + (f": {a.reason}" if a.reason else ""))
+        name = d.method.name
+        if name == "auto":
+            usable = [a for a in advice if a.applies]
+            if not usable:
+                rec["status"] = "failed"
+                rec["note"] = "no thickness method applies"
+                res.check("thickness method", "fail", "no method applies: " +
+                          "; ".join(f"{a.method}: {a.reason}" for a in advice))
+                run.blocked = "no thickness method applies"
+                return
+            name = usable[0].method
+        elif name not in names:
+            raise DesignFileError(f"[method] name = {name!r} is not a thickness method{suggest(name, names)} "
+                                  f"(available: auto, {', '.join(names)})")
+        else:
+            chosen = advice[names.index(name)]
+            if not chosen.applies:
+                rec["status"] = "failed"
+                rec["note"] = f"{name} does not apply: {chosen.reason}"
+                res.check("thickness method", "fail", rec["note"])
+                run.blocked = rec["note"]
+                return
+        opts = dict(d.method.options)
+        _check_options(make, opts, "[method] options", fixed=("pattern", "method", "thickness", "target_fold", "path"))
+        try:
+            plan = make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
+        except TypeError as exc:
+            raise DesignFileError(f"[method] options for {name!r}: {exc}") from exc
+        except ThickpanelError as exc:
+            rec["status"] = "failed"
+            rec["note"] = str(exc)
+            res.check("thickness method", "fail", f"{name}: {exc}")
+            run.blocked = f"{name} failed"
+            return
+        res.plan = plan
+        res.metrics["method"] = name
+        rec["note"] = name + (f" ({'; '.join(plan.notes)})" if plan.notes else "")
+        res.check("thickness method", "pass", rec["note"])
+
+
+def _check_options(fn: Callable[..., Any], opts: dict[str, Any], where: str, fixed: tuple[str, ...]) -> None:
+    """Unknown option names -> DesignFileError with the nearest valid one (when the signature says)."""
+    try:
+        ps = inspect.signature(fn).parameters
+    except (TypeError, ValueError):
+        return
+    if any(p.kind is inspect.Parameter.VAR_KEYWORD for p in ps.values()):
+        return
+    valid = [n for n, p in ps.items() if n not in fixed and p.kind in (p.KEYWORD_ONLY, p.POSITIONAL_OR_KEYWORD)]
+    for k in opts:
+        if k not in valid:
+            raise DesignFileError(f"unknown key {where} {k}{suggest(k, valid)} (valid: {', '.join(valid) or 'none'})")
+
+
+def _clearance(run: _Run) -> None:
+    res, d = run.res, run.res.design
+    if run.blocked or res.plan is None or res.path is None:
+        run.skip("clearance", "blocked", run.blocked or "no plan or fold path")
+        return
+    fn, why = _api("clearance", "clearance")
+    if fn is None:
+        run.skip("clearance", "not available", why)
+        res.check("clearance", "n/a", why)
+        return
+    with run.stage("clearance") as rec:
+        rep = fn(res.plan, res.path)
+        res.clearance = rep
+        mc = float(rep.min_clearance)
+        res.metrics["min_clearance_mm"] = mc
+        where = getattr(rep, "where", None)
+        rec["note"] = f"minimum {mc:.3f} mm" + (f" at {where}" if where else "")
+        ok = mc >= d.checks.min_clearance
+        res.check("clearance over the fold", "pass" if ok else "fail",
+                  rec["note"] + f" (required >= {d.checks.min_clearance:g} mm)")
+
+
+def _envelope(res: BuildResult) -> None:
+    """Deployed and stowed bounding boxes (mm) of the slabs, or of the bare panels without a plan."""
+    if res.path is None or not res.path.states:
+        return
+    for label, state in (("deployed", res.path.states[0]), ("stowed", res.path.states[-1])):
+        pts = _state_points(res, state)
+        lo, hi = pts.min(axis=0), pts.max(axis=0)
+        res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
+    dep = res.metrics["deployed_envelope_mm"]
+    sto = res.metrics["stowed_envelope_mm"]
+    foot = sto[0] * sto[1]
+    res.metrics["packing_ratio"] = float(res.metrics["deployed_area_mm2"] / foot) if foot > 0 else None
+    res.metrics["deployed_diameter_mm"] = float(math.hypot(dep[0], dep[1]))
+
+
+def _state_points(res: BuildResult, state: Any) -> np.ndarray:
+    """(k, 3) corner points of every slab (or panel) at ``state``, mm."""
+    plan = res.plan
+    if plan is None:
+        return np.vstack([state.panel_vertices_3d(p.index) for p in res.pattern.panels])
+    poses = plan.poses(state)
+    out = []
+    for s in plan.slabs:
+        poly = s.polygon_array()
+        for z in (s.z0, s.z1):
+            h = np.column_stack([poly, np.full(len(poly), z), np.ones(len(poly))])
+            out.append((h @ poses[s.panel].T)[:, :3])
+    return np.vstack(out)
+
+
+def _solids(run: _Run) -> None:
+    res, d = run.res, run.res.design
+    if run.blocked or res.plan is None:
+        run.skip("solids", "blocked", run.blocked or "no thickness plan")
+        return
+    fn, why = _api("solids", "build_parts")
+    if fn is None:
+        run.skip("solids", "not available", why)
+        return
+    opts = dict(d.hinge.options)
+    styles_fn, _ = _api("hinges", "available_hinge_styles")
+    if styles_fn is not None:
+        styles = list(styles_fn())
+        if d.hinge.style not in styles:
+            raise DesignFileError(f"[hinge] style = {d.hinge.style!r} is not a hinge style"
+                                  f"{suggest(d.hinge.style, styles)} (available: {', '.join(styles)})")
+        get_style, _ = _api("hinges", "get_hinge_style")
+        if get_style is not None:
+            try:
+                get_style(d.hinge.style, **opts)
+            except TypeError as exc:
+                raise DesignFileError(f"[hinge] options for style {d.hinge.style!r}: {exc}") from exc
+            except HingeError as exc:
+                raise DesignFileError(f"[hinge] {exc}") from exc
+    with run.stage("solids") as rec:
+        try:
+            parts = fn(res.plan, hinge_style=d.hinge.style, hinge_options=opts or None,
+                       material=d.panels.material or None)
+        except HingeError as exc:
+            raise DesignFileError(f"[hinge] style = {d.hinge.style!r}: {exc}") from exc
+        res.parts = parts
+        plist = list(parts.parts)
+        rec["note"] = f"{len(plist)} parts"
+        res.metrics["parts"] = len(plist)
+        vols = [float(getattr(p, "volume", 0.0) or 0.0) for p in plist]
+        res.metrics["total_volume_mm3"] = float(sum(vols))
+        masses: list[Any] = [getattr(p, "mass", None) for p in plist]
+        if masses and all(m is not None for m in masses):
+            res.metrics["total_mass_g"] = float(np.sum(np.asarray(masses, dtype=float)))
+        res.check("solids valid", "pass", rec["note"])
+
+
+def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> None:
+    res = run.res
+    if res.parts is None:
+        run.skip("exports", "blocked", run.blocked or "no solids")
+        return
+    fn, why = _api("export", "export_parts")
+    if fn is None:
+        run.skip("exports", "not available", why)
+        return
+    avail, _ = _api("export", "available_formats")
+    if avail is not None:
+        names = list(avail())
+        for f in formats:
+            if f not in names:
+                raise DesignFileError(f"[exports] formats: {f!r} is not an export format{suggest(f, names)} "
+                                      f"(available: {', '.join(names)})")
+    with run.stage("exports") as rec:
+        n = 0
+        for i, t in enumerate(states):
+            if run.progress:
+                run.progress("exports", i, len(states))
+            state = res.path.at(float(t)) if res.path is not None else None
+            sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
+            paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance)
+            res.outputs += [Path(p) for p in paths]
+            n += len(paths)
+        rec["note"] = f"{n} files in {res.out_dir}"
+
+
+def run_check(design: Design, *, progress: Progress | None = None) -> dict[str, Any]:
+    """Validation, foldability, rigidity, fold path, method applicability and clearance; no files."""
+    return run_pipeline(design, command="check", progress=progress,
+                        stages=("pattern", "foldability", "rigidity", "fold path", "method", "clearance")).summary()
+
+
+def run_fold(design: Design, t: float, out_dir: Path | None = None, *, progress: Progress | None = None,
+             formats: tuple[str, ...] | None = None) -> dict[str, Any]:
+    """Export the array at fold fraction ``t`` (0 deployed .. 1 stowed)."""
+    if not (isinstance(t, int | float) and 0.0 <= t <= 1.0):
+        raise DesignFileError(f"--at {t!r} is outside the fold fraction range 0..1")
+    return run_pipeline(design, command="fold", out_dir=out_dir, at=float(t), formats=formats, progress=progress,
+                        stages=("pattern", "fold path", "method", "solids", "exports")).summary()
+
+
+def run_build(design: Design, out_dir: Path | None = None, *, progress: Progress | None = None,
+              formats: tuple[str, ...] | None = None) -> dict[str, Any]:
+    """Every stage: checks, solids, exports at ``[exports] states``, drawings and the report."""
+    return run_pipeline(design, command="build", out_dir=out_dir, formats=formats, progress=progress).summary()
+
+
+def run_report(design: Design, out_dir: Path | None = None, *, progress: Progress | None = None) -> dict[str, Any]:
+    """All checks and the solids (for the bill of materials), then only the HTML report."""
+    return run_pipeline(design, command="report", out_dir=out_dir, progress=progress,
+                        stages=("pattern", "foldability", "rigidity", "fold path", "method", "clearance",
+                                "solids", "report")).summary()

@@ -1,0 +1,218 @@
+"""The ``thickpanel`` command line: parse, call the API, exit. Heavy imports happen inside ``main``.
+
+Commands::
+
+    thickpanel new NAME [--scenario S] [--force]   write a commented starter design file NAME.toml
+    thickpanel check FILE                          validation, foldability, methods, clearance
+    thickpanel fold FILE --at T [-o DIR]           export one fold state (0 deployed .. 1 stowed)
+    thickpanel build FILE [-o DIR]                 everything: checks, solids, exports, report
+    thickpanel report FILE [-o DIR]                the HTML report only
+
+Exit codes: 0 ok, 1 the design fails its checks, 2 bad input, 3 internal error.
+``--json`` prints a machine-readable summary on stdout; ``--quiet`` prints nothing but errors;
+``--debug`` shows tracebacks. Progress bars go to stderr only when it is a terminal.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import traceback
+from pathlib import Path
+from typing import Any, TextIO
+
+__all__ = ["main", "EXIT_OK", "EXIT_FAIL", "EXIT_INPUT", "EXIT_INTERNAL", "scenarios"]
+
+EXIT_OK, EXIT_FAIL, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+STARTERS = Path(__file__).resolve().parent / "starters"
+
+
+def scenarios() -> list[str]:
+    """Names of the bundled starter scenarios (``thickpanel new --scenario``)."""
+    return sorted(p.stem for p in STARTERS.glob("*.toml"))
+
+
+class TerminalProgress:
+    """A one-line progress bar on ``stream``; silent unless the stream is a terminal."""
+
+    WIDTH = 24
+
+    def __init__(self, stream: TextIO, enabled: bool):
+        self.stream = stream
+        self.enabled = enabled and bool(getattr(stream, "isatty", lambda: False)())
+        self.steps = 0
+
+    def __call__(self, label: str, done: int, total: int) -> None:
+        if not self.enabled:
+            return
+        if done == 0:
+            self.steps += 1
+        frac = done / total if total else 1.0
+        n = int(round(frac * self.WIDTH))
+        self.stream.write(f"\r[{'#' * n}{'.' * (self.WIDTH - n)}] {self.steps:2d} {label:<14}")
+        if done >= total:
+            self.stream.write("\r" + " " * (self.WIDTH + 22) + "\r")
+        self.stream.flush()
+
+
+def _parser() -> argparse.ArgumentParser:
+    common = argparse.ArgumentParser(add_help=False)
+    common.add_argument("--json", action="store_true", help="print a machine-readable summary on stdout")
+    common.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
+    common.add_argument("--debug", action="store_true", help="show tracebacks")
+    p = argparse.ArgumentParser(
+        prog="thickpanel",
+        description="Deployable arrays of thick rigid panels: check a design file, fold it, build exports.",
+        epilog="exit codes: 0 ok, 1 design fails its checks, 2 bad input, 3 internal error",
+    )
+    from . import __version__
+
+    p.add_argument("--version", action="version", version=f"thickpanel {__version__}")
+    sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    n = sub.add_parser("new", parents=[common], help="write a commented starter design file")
+    n.add_argument("name", help="file to write (.toml added when missing); its stem names the design")
+    n.add_argument("--scenario", default="miura-reference",
+                   help="bundled scenario to start from (see --list; default: miura-reference)")
+    n.add_argument("--list", action="store_true", help="list the bundled scenarios and exit")
+    n.add_argument("--force", action="store_true", help="overwrite an existing file")
+    c = sub.add_parser("check", parents=[common], help="validate and check a design; no files written")
+    c.add_argument("file", type=Path)
+    f = sub.add_parser("fold", parents=[common], help="export one fold state")
+    f.add_argument("file", type=Path)
+    f.add_argument("--at", type=float, required=True, metavar="T", help="fold fraction, 0 deployed .. 1 stowed")
+    f.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
+    f.add_argument("--formats", help="comma-separated export formats (default: [exports] formats)")
+    b = sub.add_parser("build", parents=[common], help="checks, solids, exports, drawings and report")
+    b.add_argument("file", type=Path)
+    b.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
+    b.add_argument("--formats", help="comma-separated export formats (default: [exports] formats)")
+    r = sub.add_parser("report", parents=[common], help="write the HTML report only")
+    r.add_argument("file", type=Path)
+    r.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
+    return p
+
+
+def _emit_json(obj: dict[str, Any]) -> None:
+    sys.stdout.write(json.dumps(obj, indent=2, sort_keys=False, allow_nan=False, default=str) + "\n")
+
+
+def _print_summary(s: dict[str, Any]) -> None:
+    out = sys.stdout
+    out.write(f"{s['design']}: {s['command']}\n")
+    w = max([len(c["check"]) for c in s["checks"]] + [5])
+    for c in s["checks"]:
+        out.write(f"  {c['verdict'].upper():<5} {c['check']:<{w}}  {c['detail']}\n")
+    for st in s["stages"]:
+        if st["status"] != "ok":
+            out.write(f"  note: stage {st['stage']} {st['status']}: {st['note']}\n")
+    if s["outputs"]:
+        out.write(f"  wrote {len(s['outputs'])} files to {s['out_dir']}\n")
+    if s.get("report"):
+        out.write(f"  report: {s['report']}\n")
+    out.write(f"verdict: {'PASS' if s['ok'] else 'FAIL'}\n")
+
+
+def _new(args: argparse.Namespace) -> int:
+    names = scenarios()
+    if args.list:
+        if args.json:
+            _emit_json({"scenarios": names})
+        else:
+            sys.stdout.write("\n".join(names) + "\n")
+        return EXIT_OK
+    if args.scenario not in names:
+        from .design import suggest
+
+        raise _InputError(f"--scenario {args.scenario!r} is not a bundled scenario{suggest(args.scenario, names)} "
+                          f"(available: {', '.join(names)})")
+    target = Path(args.name)
+    if target.suffix != ".toml":
+        target = target.with_name(target.name + ".toml")
+    if target.exists() and not args.force:
+        raise _InputError(f"{target} already exists; use --force to overwrite it")
+    text = (STARTERS / f"{args.scenario}.toml").read_text(encoding="utf-8")
+    lines = text.splitlines()
+    for i, line in enumerate(lines):  # the design is named after the file
+        if line.startswith("name = "):
+            lines[i] = f'name = "{target.stem}"'
+            break
+    try:
+        target.parent.mkdir(parents=True, exist_ok=True)
+        tmp = target.with_name(target.name + ".tmp")
+        tmp.write_text("\n".join(lines) + "\n", encoding="utf-8")
+        tmp.replace(target)
+    except OSError as exc:
+        raise _InputError(f"cannot write {target}: {exc}") from None
+    if args.json:
+        _emit_json({"ok": True, "command": "new", "file": str(target), "scenario": args.scenario})
+    elif not args.quiet:
+        sys.stdout.write(f"wrote {target} (scenario {args.scenario}); next: thickpanel check {target}\n")
+    return EXIT_OK
+
+
+class _InputError(Exception):
+    """Bad command-line input (exit code 2)."""
+
+
+def _run(args: argparse.Namespace) -> int:
+    if args.command == "new":
+        return _new(args)
+    from . import build
+    from .design import load_design
+
+    design = load_design(args.file)
+    prog = TerminalProgress(sys.stderr, enabled=not args.quiet)
+    formats = tuple(x.strip() for x in args.formats.split(",") if x.strip()) if getattr(args, "formats", None) \
+        else None
+    if args.command == "check":
+        s = build.run_check(design, progress=prog)
+    elif args.command == "fold":
+        if not 0.0 <= args.at <= 1.0:
+            raise _InputError(f"--at {args.at:g} is outside the fold fraction range 0 (deployed) .. 1 (stowed)")
+        s = build.run_fold(design, args.at, args.out, progress=prog, formats=formats)
+    elif args.command == "build":
+        s = build.run_build(design, args.out, progress=prog, formats=formats)
+    else:
+        s = build.run_report(design, args.out, progress=prog)
+    code = EXIT_OK if s["ok"] else EXIT_FAIL
+    s["exit_code"] = code
+    if args.json:
+        _emit_json(s)
+    elif not args.quiet:
+        _print_summary(s)
+    return code
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Entry point of the ``thickpanel`` console script; returns the exit code."""
+    parser = _parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse already printed its usage message
+        return EXIT_OK if exc.code == 0 else EXIT_INPUT
+    from .errors import DesignFileError, ExportError, PatternError, ThickpanelError
+
+    def fail(code: int, msg: str) -> int:
+        if args.debug:
+            traceback.print_exc()
+        sys.stderr.write(f"thickpanel: error: {msg}\n")
+        if args.json:
+            _emit_json({"ok": False, "command": args.command, "exit_code": code, "error": msg})
+        return code
+
+    try:
+        return _run(args)
+    except (_InputError, DesignFileError, PatternError, ExportError) as exc:
+        return fail(EXIT_INPUT, str(exc))
+    except ThickpanelError as exc:
+        return fail(EXIT_FAIL, f"the design fails: {exc}")
+    except KeyboardInterrupt:
+        return fail(EXIT_INTERNAL, "interrupted")
+    except Exception as exc:  # noqa: BLE001 - the last line of defence of a command line
+        return fail(EXIT_INTERNAL, f"internal error ({type(exc).__name__}: {exc}); rerun with --debug and "
+                    "report it with the design file")
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
