@@ -110,7 +110,9 @@ def _api(module: str, name: str) -> tuple[Any, str]:
     except ModuleNotFoundError as exc:
         if exc.name and (full == exc.name or full.startswith(exc.name + ".")):
             return None, f"module {full} is not available in this installation"
-        raise
+        return None, f"module {full} cannot be imported ({exc})"
+    except ImportError as exc:
+        return None, f"module {full} cannot be imported ({exc})"
     fn = getattr(mod, name, None)
     if fn is None:
         return None, f"{full}.{name} is not available in this installation"
