@@ -1,0 +1,365 @@
+"""The visual report: one self-contained HTML page per build, every image embedded as base64 PNG.
+
+Sections: verdict and checks, crease drawing, strip of fold-state renders (matplotlib 3D), clearance
+against fold fraction, stowed envelope with its dimensions, bill of materials, thickness-method and
+hinge checks, stages, safety cautions. Only matplotlib's object API is used (no pyplot, no global
+backend switch). Output is deterministic: no timestamps.
+"""
+
+from __future__ import annotations
+
+import base64
+import html
+import io
+import math
+import os
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+__all__ = ["write_report", "render_report", "fold_strip_png", "envelope_png", "crease_png", "SAFETY"]
+
+SAFETY = (
+    "Deployable arrays store energy (springs, tapes, stowed strain) and close like scissors: panels "
+    "and hinges pinch fingers and can release suddenly. Fold and unfold prototypes slowly, keep hands "
+    "clear of hinge lines and restrain stowed arrays before releasing them.",
+    "This report shows geometry: fold kinematics, a clearance sweep and hinge sizing. It is not a "
+    "structural, fatigue, thermal, wind- or snow-load, or deployment-dynamics analysis.",
+    "Flight hardware, shelters and products used by the public need review by a qualified engineer "
+    "under the codes and standards that apply (launch provider and agency mechanism standards, building "
+    "codes, product-safety rules) before anything is built, flown or sold.",
+    "Machining, cutting and printing carry their own hazards: follow the machine maker's and your "
+    "workplace's safety rules, and check every exported file before cutting material.",
+)
+
+STYLE = """
+body{font-family:system-ui,sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}
+h1{margin-bottom:0}h2{border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
+table{border-collapse:collapse;margin:.5em 0;font-size:.92em}td,th{border:1px solid #ccc;padding:.25em .6em;
+text-align:left;vertical-align:top}th{background:#f2f2f2}td.num{text-align:right;font-variant-numeric:tabular-nums}
+.pass{font-weight:bold}.fail{font-weight:bold;text-decoration:underline}.verdict{font-size:1.4em;padding:.4em .8em;
+border:3px solid #222;display:inline-block}.note{color:#555;font-size:.9em}img{max-width:100%;border:1px solid #ddd}
+.caution{border-left:6px solid #222;padding:.3em 1em;background:#f7f7f7}
+"""
+
+
+def _png(fig: Any) -> bytes:
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    FigureCanvasAgg(fig)
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=fig.dpi, metadata={"Software": None})
+    return buf.getvalue()
+
+
+def _img(png: bytes | None, alt: str) -> str:
+    if not png:
+        return f'<p class="note">{html.escape(alt)}: not available.</p>'
+    data = base64.b64encode(png).decode("ascii")
+    return f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">'
+
+
+def _e(x: Any) -> str:
+    return html.escape(str(x))
+
+
+def _table(head: Sequence[str], rows: Sequence[Sequence[Any]], num: Sequence[int] = ()) -> str:
+    out = ["<table><tr>" + "".join(f"<th>{_e(h)}</th>" for h in head) + "</tr>"]
+    for r in rows:
+        cells = []
+        for i, c in enumerate(r):
+            cls = ' class="num"' if i in num else ""
+            if isinstance(c, float):
+                c = "-" if not math.isfinite(c) else f"{c:.6g}"
+            cells.append(f"<td{cls}>{_e(c)}</td>")
+        out.append("<tr>" + "".join(cells) + "</tr>")
+    return "\n".join(out) + "</table>"
+
+
+# --------------------------------------------------------------------------- images
+def crease_png(pattern: Any) -> bytes:
+    """Crease drawing: the drawing module's PNG, else a plain matplotlib drawing.
+
+    Line styles follow the paper-folding convention: valley dashed, mountain dash-dot-dot, border
+    solid, cut heavy solid, flat thin dotted. No colour carries meaning.
+    """
+    try:
+        from .drawing import pattern_png
+
+        return bytes(pattern_png(pattern, labels=pattern.n_panels <= 60))
+    except ImportError:
+        pass
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(6, 6), dpi=100)
+    ax = fig.add_subplot(1, 1, 1)
+    styles = {"valley": ((0, (6, 3)), 1.0), "mountain": ((0, (8, 2, 1, 2, 1, 2)), 1.0),
+              "border": ("-", 1.4), "cut": ("-", 2.6), "flat": ((0, (1, 2)), 0.6)}
+    v = pattern.vertices
+    for (a, b), k in zip(pattern.creases, pattern.kinds, strict=True):
+        ls, lw = styles.get(k, ("-", 1.0))
+        ax.plot([v[a, 0], v[b, 0]], [v[a, 1], v[b, 1]], linestyle=ls, linewidth=lw, color="black")
+    ax.set_aspect("equal")
+    ax.set_xlabel("x (mm)")
+    ax.set_ylabel("y (mm)")
+    ax.set_title("crease pattern (valley dashed, mountain dash-dot-dot)")
+    return _png(fig)
+
+
+def _slab_faces(res: Any, state: Any) -> list[np.ndarray]:
+    """Polygons (k, 3) of every slab's faces (or bare panels) at ``state``, mm."""
+    faces: list[np.ndarray] = []
+    plan = getattr(res, "plan", None)
+    if plan is None:
+        for p in res.pattern.panels:
+            faces.append(state.panel_vertices_3d(p.index))
+        return faces
+    poses = plan.poses(state)
+    for s in plan.slabs:
+        poly = s.polygon_array()
+        n = len(poly)
+        T = poses[s.panel]
+        bot = np.column_stack([poly, np.full(n, s.z0), np.ones(n)]) @ T.T
+        top = np.column_stack([poly, np.full(n, s.z1), np.ones(n)]) @ T.T
+        faces += [bot[:, :3], top[:, :3]]
+        for i in range(n):
+            j = (i + 1) % n
+            faces.append(np.array([bot[i, :3], bot[j, :3], top[j, :3], top[i, :3]]))
+    return faces
+
+
+def _draw_state(ax: Any, faces: list[np.ndarray], lim: tuple[np.ndarray, np.ndarray]) -> None:
+    from mpl_toolkits.mplot3d.art3d import Poly3DCollection
+
+    coll = Poly3DCollection(faces, facecolor=(0.82, 0.84, 0.88), edgecolor=(0.1, 0.1, 0.1), linewidth=0.3)
+    ax.add_collection3d(coll)
+    lo, hi = lim
+    c = (lo + hi) / 2
+    r = float(max(hi - lo)) / 2 or 1.0
+    ax.set_xlim(c[0] - r, c[0] + r)
+    ax.set_ylim(c[1] - r, c[1] + r)
+    ax.set_zlim(c[2] - r, c[2] + r)
+    ax.set_box_aspect((1, 1, 1))
+    ax.view_init(elev=28, azim=-60)
+    ax.set_axis_off()
+
+
+def fold_strip_png(res: Any, fractions: Sequence[float] = (0.0, 0.25, 0.5, 0.75, 1.0)) -> bytes | None:
+    """A row of 3D renders at the given fold fractions (needs a fold path)."""
+    path = getattr(res, "path", None)
+    if path is None or not path.states:
+        return None
+    from matplotlib.figure import Figure
+
+    last = float(path.states[-1].t) if math.isfinite(path.states[-1].t) else 1.0
+    ts = [min(t, last) for t in fractions]
+    states = [path.at(t) for t in ts]
+    all_faces = [_slab_faces(res, s) for s in states]
+    fig = Figure(figsize=(3.0 * len(ts), 3.2), dpi=90)
+    for k, (t, faces) in enumerate(zip(ts, all_faces, strict=True)):
+        pts = np.vstack(faces)
+        ax = fig.add_subplot(1, len(ts), k + 1, projection="3d")
+        _draw_state(ax, faces, (pts.min(axis=0), pts.max(axis=0)))
+        ax.set_title(f"t = {t:.2f}", fontsize=10)
+    fig.subplots_adjust(left=0, right=1, bottom=0, top=0.9, wspace=0)
+    return _png(fig)
+
+
+def envelope_png(res: Any) -> bytes | None:
+    """Stowed state seen from above and from the side with its bounding-box dimensions in mm."""
+    path = getattr(res, "path", None)
+    if path is None or not path.states:
+        return None
+    from matplotlib.figure import Figure
+
+    faces = _slab_faces(res, path.states[-1])
+    pts = np.vstack(faces)
+    lo, hi = pts.min(axis=0), pts.max(axis=0)
+    size = hi - lo
+    fig = Figure(figsize=(10, 4.2), dpi=90)
+    for k, (i, j, title) in enumerate(((0, 1, "top view (x, y)"), (0, 2, "side view (x, z)"),
+                                       (1, 2, "side view (y, z)"))):
+        ax = fig.add_subplot(1, 3, k + 1)
+        for f in faces:
+            ax.fill(f[:, i], f[:, j], facecolor=(0.85, 0.86, 0.9), edgecolor="black", linewidth=0.3)
+        ax.plot([lo[i], hi[i], hi[i], lo[i], lo[i]], [lo[j], lo[j], hi[j], hi[j], lo[j]], "k--", linewidth=1)
+        ax.annotate(f"{size[i]:.1f} mm", ((lo[i] + hi[i]) / 2, hi[j]), xytext=(0, 3),
+                    textcoords="offset points", ha="center", va="bottom", fontsize=9)
+        ax.annotate(f"{size[j]:.1f} mm", (hi[i], (lo[j] + hi[j]) / 2), xytext=(-3, 0),
+                    textcoords="offset points", ha="right", va="center", rotation=90, fontsize=9)
+        ax.set_aspect("equal", adjustable="datalim")
+        ax.set_title(title, fontsize=10)
+        ax.set_xlabel("xyz"[i] + " (mm)")
+        ax.set_ylabel("xyz"[j] + " (mm)")
+    fig.tight_layout()
+    return _png(fig)
+
+
+def _clearance_png(rep: Any) -> bytes | None:
+    if rep is None:
+        return None
+    fn = getattr(rep, "png_bytes", None)
+    return bytes(fn()) if fn else None
+
+
+# --------------------------------------------------------------------------- page
+def _verdict_cell(v: str) -> str:
+    cls = "pass" if v == "pass" else ("fail" if v == "fail" else "")
+    return f'<td class="{cls}">{_e(v.upper())}</td>'
+
+
+def _checks_table(checks: Sequence[dict[str, Any]]) -> str:
+    rows = ["<table><tr><th>check</th><th>verdict</th><th>detail</th></tr>"]
+    for c in checks:
+        rows.append(f"<tr><td>{_e(c['check'])}</td>{_verdict_cell(c['verdict'])}<td>{_e(c['detail'])}</td></tr>")
+    return "\n".join(rows) + "</table>"
+
+
+def _bom_section(res: Any) -> str:
+    parts = getattr(res, "parts", None)
+    if parts is None:
+        return '<p class="note">Bill of materials: not available (no solids were built).</p>'
+    rows = []
+    for p in parts.parts:
+        rows.append([p.name, getattr(p, "kind", ""), getattr(p, "material", "") or "-",
+                     float(getattr(p, "thickness", float("nan")) or float("nan")),
+                     float(getattr(p, "volume", float("nan")) or float("nan")),
+                     float(getattr(p, "mass", float("nan")) or float("nan"))])
+    return _table(["part", "kind", "material", "thickness (mm)", "volume (mm³)", "mass (g)"], rows, num=(3, 4, 5))
+
+
+def _method_section(res: Any) -> str:
+    out = []
+    if res.advice:
+        rows = []
+        for a in res.advice:
+            reach = getattr(a, "reachable", None)
+            reach_s = f"{math.degrees(reach):.1f}" if isinstance(reach, int | float) and math.isfinite(reach) else "-"
+            rows.append([a.method, "applies" if a.applies else "does not apply", reach_s, a.reason or ""])
+        out.append(_table(["method", "verdict", "reachable fold (deg)", "reason"], rows, num=(2,)))
+    else:
+        out.append('<p class="note">Thickness-method advice: not available.</p>')
+    plan = getattr(res, "plan", None)
+    if plan is not None:
+        out.append(f"<p>Chosen method: <b>{_e(plan.method)}</b>, target fold "
+                   f"{math.degrees(plan.target_fold):.1f} deg.</p>")
+        if plan.notes:
+            out.append("<ul>" + "".join(f"<li>{_e(n)}</li>" for n in plan.notes) + "</ul>")
+    return "\n".join(out)
+
+
+def _hinge_section(res: Any) -> str:
+    d = res.design
+    opts = ", ".join(f"{k} = {v}" for k, v in d.hinge.options.items()) or "defaults"
+    out = [f"<p>Hinge style <b>{_e(d.hinge.style)}</b> ({_e(opts)}).</p>"]
+    plan = getattr(res, "plan", None)
+    if plan is None or not plan.hinges:
+        out.append('<p class="note">Hinge-line checks: not available (no thickness plan).</p>')
+        return "\n".join(out)
+    from ..pattern import cid
+
+    target = float(plan.target_fold)
+    rows = []
+    for h in plan.hinges:
+        lo, hi = h.fold_range
+        reach = max(abs(lo), abs(hi))
+        ok = reach >= target - 1e-9 * max(1.0, target)
+        rows.append([cid(h.crease), h.face, float(h.gap), float(h.usable_length), math.degrees(lo), math.degrees(hi),
+                     "pass" if ok else "fail"])
+    bad = [r for r in rows if r[-1] == "fail"]
+    rows.sort(key=lambda r: (r[-1] != "fail", r[3]))
+    out.append(f"<p>{len(rows)} hinge lines; {len(bad)} cannot reach the target fold of "
+               f"{math.degrees(target):.1f} deg without their slabs meeting.</p>")
+    shown = rows[:40]
+    out.append(_table(["crease", "face", "gap (mm)", "usable length (mm)", "fold range from (deg)",
+                       "to (deg)", "reaches target"], shown, num=(2, 3, 4, 5)))
+    if len(rows) > len(shown):
+        out.append(f'<p class="note">{len(rows) - len(shown)} more hinge lines not listed '
+                   "(failing and shortest first).</p>")
+    return "\n".join(out)
+
+
+def render_report(res: Any) -> str:
+    """The HTML text of the report for a :class:`~thickpanel.build.BuildResult`."""
+    d = res.design
+    s = res.summary() if hasattr(res, "summary") else dict(res)
+    m = s["metrics"]
+    verdict = "PASS" if s["ok"] else "FAIL"
+    parts = [
+        "<!DOCTYPE html>",
+        '<html lang="en"><head><meta charset="utf-8">',
+        f"<title>thickpanel report: {_e(d.name)}</title><style>{STYLE}</style></head><body>",
+        f"<h1>{_e(d.name)}</h1>",
+        f"<p>{_e(d.description)}</p>" if d.description else "",
+        f'<p class="note">Design file: {_e(d.source.name if d.source else "(in memory)")}; layout '
+        f"{_e(d.layout.family or (d.layout.pattern.name if d.layout.pattern else ''))}; panels "
+        f"{d.panels.thickness:g} mm{' ' + _e(d.panels.material) if d.panels.material else ''}; target fold "
+        f"{d.fold.target_deg:g} deg. All lengths in mm, angles in degrees.</p>",
+        f'<p class="verdict">Verdict: {verdict}</p>',
+        '<div class="caution"><b>Safety.</b> ' + _e(SAFETY[0]) + " " + _e(SAFETY[2]) + "</div>",
+        "<h2>Checks</h2>",
+        _checks_table(s["checks"]),
+        "<h2>Crease pattern</h2>",
+    ]
+    try:
+        parts.append(_img(crease_png(res.pattern), "crease drawing") if res.pattern is not None
+                     else '<p class="note">Crease drawing: not available.</p>')
+    except Exception as exc:  # noqa: BLE001 - a drawing failure must not lose the whole report
+        parts.append(f'<p class="note">Crease drawing failed: {_e(exc)}</p>')
+    parts += ["<h2>Fold sequence</h2>",
+              '<p class="note">Renders at fold fractions t = 0 (deployed) to 1 (stowed).</p>',
+              _img(fold_strip_png(res), "fold-state renders"),
+              "<h2>Clearance over the fold</h2>"]
+    rep = getattr(res, "clearance", None)
+    if rep is not None:
+        where = getattr(rep, "where", None)
+        txt = f"Minimum clearance {float(rep.min_clearance):.3f} mm"
+        if where:
+            (a, b), t = where
+            txt += f" between {a} and {b} at t = {float(t):.3f}"
+        parts.append(f"<p>{_e(txt)}; the design requires at least {d.checks.min_clearance:g} mm.</p>")
+        if getattr(rep, "worst_pairs", None):
+            parts.append(_table(["pair", "clearance (mm)", "at t"],
+                                [[f"{a}-{b}", float(c), float(t)] for (a, b), c, t in rep.worst_pairs],
+                                num=(1, 2)))
+    parts.append(_img(_clearance_png(rep), "clearance against fold fraction"))
+    parts.append("<h2>Stowed envelope</h2>")
+    env_rows = []
+    for key, label in (("deployed_envelope_mm", "deployed"), ("stowed_envelope_mm", "stowed")):
+        if m.get(key):
+            x, y, z = m[key]
+            env_rows.append([label, x, y, z])
+    if env_rows:
+        parts.append(_table(["state", "x (mm)", "y (mm)", "z (mm)"], env_rows, num=(1, 2, 3)))
+        if m.get("packing_ratio"):
+            parts.append(f"<p>Packing ratio (deployed panel area / stowed footprint): {m['packing_ratio']:.2f}.</p>")
+    parts.append(_img(envelope_png(res), "stowed envelope"))
+    parts += ["<h2>Bill of materials</h2>", _bom_section(res),
+              "<h2>Thickness method</h2>", _method_section(res),
+              "<h2>Hinges</h2>", _hinge_section(res),
+              "<h2>Stages</h2>",
+              _table(["stage", "status", "seconds", "note"],
+                     [[st["stage"], st["status"], float(st.get("seconds", 0.0)), st["note"]] for st in s["stages"]],
+                     num=(2,)),
+              "<h2>Safety cautions</h2>",
+              '<div class="caution">' + "".join(f"<p>{_e(x)}</p>" for x in SAFETY) + "</div>",
+              "</body></html>"]
+    return "\n".join(p for p in parts if p)
+
+
+def write_report(res: Any, path: str | os.PathLike[str]) -> Path:
+    """Write the report of a build result to ``path`` (temporary file, then rename); return the path."""
+    from ..errors import ExportError
+
+    out = Path(path)
+    text = render_report(res).encode("utf-8")
+    try:
+        out.parent.mkdir(parents=True, exist_ok=True)
+        tmp = out.with_name(out.name + ".tmp")
+        tmp.write_bytes(text)
+        tmp.replace(out)
+    except OSError as exc:
+        raise ExportError(f"cannot write report {out}: {exc}") from None
+    return out
