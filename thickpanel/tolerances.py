@@ -34,6 +34,10 @@ class Tolerances:
         translations) of a fold state that counts as closed.
     contact : float, mm
         Clearance at or below which two parts count as touching.
+    solve : float
+        Absolute tolerance of scalar root solves of layout parameters (rad, or dimensionless for
+        log-ratios). 1e-14 leaves Kawasaki residuals of solved spiral lattices near 1e-15 rad,
+        well inside ``kawasaki``.
     """
 
     merge: float = 1e-6
@@ -43,6 +47,7 @@ class Tolerances:
     kawasaki: float = 1e-9
     closure: float = 1e-9
     contact: float = 1e-6
+    solve: float = 1e-14
 
     def __post_init__(self) -> None:
         for name, value in self.__dict__.items():
