@@ -16,7 +16,8 @@ from pathlib import Path
 import pytest
 
 from thickpanel import CreasePattern, DesignFileError
-from thickpanel.design import SCHEMA, load_design, loads_design, schema_markdown
+from thickpanel.design import SCHEMA, load_design, loads_design
+from thickpanel.design_doc import schema_markdown
 
 MINI = """
 name = "mini"
@@ -113,14 +114,15 @@ def test_thickness_range_message():
         load(MINI.replace("thickness = 3.0", "thickness = -1"))
 
 
-def test_pin_diameter_must_fit_thickness():
-    # 3.0 mm panel, 0.4 mm walls on both sides (common-practice printed wall, one 0.4 mm extrusion):
-    # largest pin 3.0 - 2 * 0.4 = 2.2 mm.
-    msg = r"\[hinge\] pin_diameter = 4 mm does not fit panels 3 mm thick \(largest: 2.2 mm"
+def test_hinge_options_checked_against_style():
+    pytest.importorskip("hinges")
+    with pytest.raises(DesignFileError, match=r"style = 'knukle' is not a hinge style; did you mean 'knuckle'"):
+        loads_design(MINI + '[hinge]\nstyle = "knukle"\n', check_layout=True)
+    msg = r"unknown key \[hinge\] pin_diameter for style 'knuckle'; did you mean 'pin_diameter_mm'"
     with pytest.raises(DesignFileError, match=msg):
-        load(MINI + '[hinge]\nstyle = "knuckle"\npin_diameter = 4.0\n')
-    d = load(MINI + '[hinge]\nstyle = "knuckle"\npin_diameter = 2.0\nknuckles = 3\n')
-    assert dict(d.hinge.options) == {"pin_diameter": 2.0, "knuckles": 3}
+        loads_design(MINI + '[hinge]\nstyle = "knuckle"\npin_diameter = 2.0\n')
+    d = loads_design(MINI + '[hinge]\nstyle = "knuckle"\npin_diameter_mm = 1.5\nknuckles = 3\n')
+    assert dict(d.hinge.options) == {"pin_diameter_mm": 1.5, "knuckles": 3}
 
 
 def test_layout_needs_exactly_one_source(tmp_path):
@@ -204,7 +206,7 @@ def test_every_schema_key_is_documented():
     doc = Path(__file__).resolve().parents[1] / "docs" / "design-file.md"
     text = doc.read_text()
     # the generated block in the reference page is exactly what the schema gives today
-    assert schema_markdown() in text, "regenerate: python -m thickpanel.design --write docs/design-file.md"
+    assert schema_markdown() in text, "regenerate: python -m thickpanel.design_doc --write docs/design-file.md"
     for k in SCHEMA:
         assert f"| `{k.name}` |" in text
         assert k.unit is not None and k.doc

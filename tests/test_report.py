@@ -136,13 +136,19 @@ def test_envelope_numbers_match_metrics(result, page):
     if "stowed_envelope_mm" in m:
         x, y, z = m["stowed_envelope_mm"]
         assert f"{x:.6g}" in page and f"{y:.6g}" in page and f"{z:.6g}" in page
-        # deployed sheet: its z extent is the slab thickness (or zero for bare panels), and its
-        # in-plane extent the flat sheet's: nx a + V by ny S with V = b cos(gamma), S = b sin(gamma)
-        # (Schenk & Guest 2013, theta = 0)
+        # deployed sheet: its in-plane extent is the flat sheet's, nx a + V by ny S with
+        # V = b cos(gamma), S = b sin(gamma) (Schenk & Guest 2013, theta = 0). Bare panels give it
+        # exactly; slabs may be inset by hinge gaps or bevels (at most a thickness per side) and
+        # never reach outside the sheet.
         dx, dy, dz = m["deployed_envelope_mm"]
-        assert dx == pytest.approx(3 * 25 + 25 * math.cos(math.radians(65)), abs=2e-3)
-        assert dy == pytest.approx(2 * 25 * math.sin(math.radians(65)), abs=2e-3)
-        assert dz <= 1.5 + 1e-3
+        fx = 3 * 25 + 25 * math.cos(math.radians(65))
+        fy = 2 * 25 * math.sin(math.radians(65))
+        if result.plan is None:
+            assert (dx, dy, dz) == pytest.approx((fx, fy, 0.0), abs=2e-3)
+        else:
+            t = 1.5
+            assert fx - 2 * t <= dx <= fx + 1e-3 and fy - 2 * t <= dy <= fy + 1e-3
+            assert dz >= t - 1e-9
 
 
 def test_deterministic(result):

@@ -404,10 +404,21 @@ def _clearance(run: _Run) -> None:
         mc = float(rep.min_clearance)
         res.metrics["min_clearance_mm"] = mc
         where = getattr(rep, "where", None)
-        rec["note"] = f"minimum {mc:.3f} mm" + (f" at {where}" if where else "")
+        rec["note"] = f"minimum {mc:.3f} mm" + (f" {_where_text(where)}" if where else "")
+        first = getattr(rep, "first_contact", None)
+        if first:
+            res.metrics["first_contact"] = {"t": float(first[0]), "pair": list(first[1])}
         ok = mc >= d.checks.min_clearance
         res.check("clearance over the fold", "pass" if ok else "fail",
                   rec["note"] + f" (required >= {d.checks.min_clearance:g} mm)")
+
+
+def _where_text(where: Any) -> str:
+    try:
+        (a, b), t = where
+        return f"between {a} and {b} at t = {float(t):.3f}"
+    except (TypeError, ValueError):
+        return f"at {where}"
 
 
 def _envelope(res: BuildResult) -> None:

@@ -2,7 +2,7 @@
 
 Millimetres and degrees throughout the file. Every key is declared once in :data:`SCHEMA` (section,
 name, type, unit, default, allowed range, meaning); the loader, the error messages and the reference
-page ``docs/design-file.md`` (``python -m thickpanel.design --write docs/design-file.md``) all read that
+page ``docs/design-file.md`` (``python -m thickpanel.design_doc --write docs/design-file.md``) all read that
 table, so they cannot drift apart.
 
 Three sections are open-ended and validated against the callable they feed: the layout parameters
@@ -22,7 +22,6 @@ from __future__ import annotations
 import difflib
 import inspect
 import math
-import sys
 import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
@@ -51,130 +50,13 @@ __all__ = [
     "load_design",
     "loads_design",
     "suggest",
-    "schema_markdown",
 ]
 
-INF = math.inf
-
-
-@dataclass(frozen=True)
-class Key:
-    """One design-file key.
-
-    Attributes
-    ----------
-    section : str
-        ``""`` for top-level keys, else the table name (``panels``, ``panels.override`` ...).
-    name : str
-    type : str
-        ``float``, ``int``, ``str``, ``bool``, ``list[str]``, ``list[float]``, ``list[float, 2]``.
-    unit : str
-        ``mm``, ``deg``, ``-`` (dimensionless) or ``""`` for text.
-    default : Any
-        ``None`` when the key has no default (see ``required``).
-    lo, hi : float
-        Allowed closed range for numbers (and for each item of a number list).
-    choices : tuple of str
-        Allowed values for strings (empty: any string).
-    required : bool
-    doc : str
-    lo_open : bool
-        When True the lower bound is excluded (``lo < value``).
-    """
-
-    section: str
-    name: str
-    type: str
-    unit: str
-    default: Any
-    doc: str
-    lo: float = -INF
-    hi: float = INF
-    choices: tuple[str, ...] = ()
-    required: bool = False
-    lo_open: bool = False
-
-    @property
-    def path(self) -> str:
-        """Key path as messages print it, e.g. ``[hinge] pin_diameter``."""
-        return f"[{self.section}] {self.name}" if self.section else self.name
-
-    def range_text(self) -> str:
-        """Human-readable allowed range."""
-        if self.choices:
-            return "one of " + ", ".join(repr(c) for c in self.choices)
-        if self.type in ("str", "list[str]", "bool"):
-            return {"str": "text", "list[str]": "list of text", "bool": "true or false"}[self.type]
-        lo = "" if self.lo == -INF else f"{self.lo:g}"
-        hi = "" if self.hi == INF else f"{self.hi:g}"
-        u = f" {self.unit}" if self.unit not in ("", "-") else ""
-        if lo and hi:
-            return f"{lo} {'<' if self.lo_open else '<='} value <= {hi}{u}"
-        if lo:
-            return f"value {'>' if self.lo_open else '>='} {lo}{u}"
-        if hi:
-            return f"value <= {hi}{u}"
-        return "any number"
-
-
-# fmt: off
-SCHEMA: tuple[Key, ...] = (
-    Key("", "name", "str", "", None, "Design name used in export folder and file names (default: the file's stem)."),
-    Key("", "description", "str", "", "", "Free text shown at the top of the report."),
-    Key("layout", "family", "str", "", None, "Registered layout generator (`thickpanel.layouts.available_layouts()`); "
-        "every other key of `[layout]` is passed to it as a parameter (mm and degrees, names as the generator "
-        "documents them). Give either `family` or `pattern`."),
-    Key("layout", "pattern", "str", "", None, "Path of an existing crease pattern (`.json` in thickpanel's schema, or "
-        "`.dxf` with one layer per crease kind), relative to the design file. Replaces `family`."),
-    Key("layout", "dxf_layers", "table", "", None, "Only with a `.dxf` pattern: crease kind -> layer name "
-        "(e.g. `{ valley = \"FOLD-V\", mountain = \"FOLD-M\" }`); default layer names are the kind words."),
-    Key("panels", "thickness", "float", "mm", None, "Panel thickness.", lo=0.0, hi=1000.0, required=True, lo_open=True),
-    Key("panels", "material", "str", "", "", "Material key of the hinge materials table "
-        "(`hinges.materials.MATERIALS`); empty for unspecified (no masses in the bill of materials)."),
-    Key("panels.override", "panels", "list[str]", "", [], "Panel ids this override applies to (`P003`)."),
-    Key("panels.override", "radius", "list[float, 2]", "mm", None, "Radial band [inner, outer] of panel "
-        "centroids, measured from the pattern's centre, that this override applies to.", lo=0.0),
-    Key("panels.override", "thickness", "float", "mm", None, "Thickness of the selected panels.",
-        lo=0.0, hi=1000.0, lo_open=True),
-    Key("panels.override", "material", "str", "", None, "Material of the selected panels."),
-    Key("method", "name", "str", "", "auto", "Thickness method (`thickpanel.thickness.available_methods()`), or "
-        "`auto` for the first method that applies in the recommendation order."),
-    Key("method", "options", "table", "", {}, "Extra keyword options passed to the thickness method."),
-    Key("hinge", "style", "str", "", "none", "Hinge style (`hinges.available_hinge_styles()`); every other key "
-        "of `[hinge]` except `min_wall` is passed to the style as an option (mm and degrees)."),
-    Key("hinge", "min_wall", "float", "mm", 0.4, "Least wall left around a hinge pin inside a panel; the design "
-        "check refuses `pin_diameter > thickness - 2 * min_wall` (0.4 mm: one 0.4 mm-nozzle printed "
-        "extrusion width, common practice).", lo=0.0, hi=100.0),
-    Key("fold", "target_deg", "float", "deg", 170.0, "Largest crease fold magnitude of the stowed state.",
-        lo=0.0, hi=180.0, lo_open=True),
-    Key("fold", "states", "int", "-", 60, "Number of sampled fold states from deployed to stowed.", lo=2, hi=2000),
-    Key("fold", "driver", "str", "", "", "Crease id driving the fold (`C012`); empty: fold fraction of the "
-        "largest fold."),
-    Key("fold", "stop_at_contact", "bool", "", False, "End the fold path at the first panel contact."),
-    Key("exports", "formats", "list[str]", "", ["step", "stl", "bom"], "Export formats "
-        "(`thickpanel.export.available_formats()`)."),
-    Key("exports", "states", "list[float]", "-", [0.0, 1.0], "Fold fractions t to export the assembly at "
-        "(0 deployed, 1 stowed).", lo=0.0, hi=1.0),
-    Key("exports", "folder", "str", "", "", "Output folder, relative to the design file; empty: "
-        "`exports/<name>` in the current directory. The command line's `-o` wins."),
-    Key("exports", "report", "bool", "", True, "Write the HTML report with the exports."),
-    Key("exports", "drawings", "bool", "", True, "Write SVG and PNG crease drawings with the exports."),
-    Key("checks", "min_clearance", "float", "mm", 0.0, "Least clearance between non-adjacent parts over the "
-        "whole fold for the design to pass.", lo=-1000.0, hi=1000.0),
-    Key("checks", "require_rigid", "bool", "", False, "Fail the design when the pattern is not rigidly foldable "
-        "(leave false for membrane or slack-hinge designs)."),
-    Key("checks", "require_flat_foldable", "bool", "", False, "Fail the design when a vertex violates Kawasaki, "
-        "Maekawa or big-little-big."),
-)
-# fmt: on
-
-SECTIONS: tuple[str, ...] = ("layout", "panels", "method", "hinge", "fold", "exports", "checks")
-_BY_PATH: dict[tuple[str, str], Key] = {(k.section, k.name): k for k in SCHEMA}
-_OPEN_SECTIONS = ("layout", "hinge")  # extra keys go to the generator / hinge style
+from .design_schema import BY_PATH, SCHEMA, SECTIONS, Key
 
 
 def _key(section: str, name: str) -> Key:
-    return _BY_PATH[(section, name)]
+    return BY_PATH[(section, name)]
 
 
 def suggest(word: str, options: Any) -> str:
@@ -192,6 +74,7 @@ class LayoutSpec:
     pattern: Path | None
     params: Mapping[str, Any] = field(default_factory=lambda: MappingProxyType({}))
     dxf_layers: Mapping[str, str] | None = None
+    pattern_text: str = ""
 
 
 @dataclass(frozen=True)
@@ -227,7 +110,6 @@ class HingeSpec:
 
     style: str
     options: Mapping[str, Any]
-    min_wall: float = 0.4
 
 
 @dataclass(frozen=True)
@@ -295,7 +177,7 @@ class Design:
 
                 io = importlib.import_module(f"{__package__}.io")
                 if not hasattr(io, "read_pattern"):
-                    raise DesignFileError(f"{self._where()}[layout] pattern = {str(lay.pattern)!r}: pattern "
+                    raise DesignFileError(f"{self._where()}[layout] pattern = {lay.pattern_text!r}: pattern "
                                           "import (thickpanel.io.read_pattern) is not available in this installation")
                 if lay.pattern.suffix.lower() == ".dxf" and lay.dxf_layers:
                     cp = io.read_dxf(lay.pattern, layers=dict(lay.dxf_layers))
@@ -315,7 +197,7 @@ class Design:
         except DesignFileError:
             raise
         except ThickpanelError as exc:
-            what = f"pattern = {str(lay.pattern)!r}" if lay.pattern else f"family = {lay.family!r}"
+            what = f"pattern = {lay.pattern_text or str(lay.pattern)!r}" if lay.pattern else f"family = {lay.family!r}"
             raise DesignFileError(f"{self._where()}[layout] {what}: {exc}") from exc
         except TypeError as exc:  # a parameter the generator's signature does not take
             raise DesignFileError(f"{self._where()}[layout] family = {lay.family!r}: {exc}") from exc
@@ -535,9 +417,9 @@ class _Validator:
             if layers is not None:
                 for k, v in layers.items():
                     if not isinstance(v, str):
-                        raise self.fail(f"[layout] dxf_layers.{k} = {v!r} must be a layer name (text)")
+                        raise self.fail(f"[layout] dxf_layers.{k} = {v!r} must be a crease kind (text)")
             return LayoutSpec(None, path, MappingProxyType({}),
-                              MappingProxyType(dict(layers)) if layers else None)
+                              MappingProxyType(dict(layers)) if layers else None, pattern_text=pat)
         if layers is not None:
             raise self.fail("[layout] dxf_layers is only allowed with a .dxf pattern")
         params = {k: v for k, v in t.items() if k not in ("family", "pattern", "dxf_layers")}
@@ -610,18 +492,36 @@ class _Validator:
     def hinge(self, panels: PanelsSpec) -> HingeSpec:
         t = self.section("hinge")
         style = self.value(_key("hinge", "style"), t)
-        wall = self.value(_key("hinge", "min_wall"), t)
-        opts = {k: v for k, v in t.items() if k not in ("style", "min_wall")}
-        pin = opts.get("pin_diameter")
-        if pin is not None:
-            if isinstance(pin, bool) or not isinstance(pin, int | float) or not pin > 0:
-                raise self.fail(f"[hinge] pin_diameter = {pin!r} must be a positive number in mm")
-            thin = min([panels.thickness] + [o.thickness for o in panels.overrides if o.thickness])
-            largest = thin - 2 * wall
-            if pin > largest:
-                raise self.fail(f"[hinge] pin_diameter = {pin:g} mm does not fit panels {thin:g} mm thick "
-                                f"(largest: {max(largest, 0.0):g} mm with min_wall = {wall:g} mm)")
-        return HingeSpec(style, MappingProxyType(opts), wall)
+        opts = {k: v for k, v in t.items() if k != "style"}
+        if self.check_layout:
+            self._check_hinge(style, opts)
+        return HingeSpec(style, MappingProxyType(opts))
+
+    def _check_hinge(self, style: str, opts: dict[str, Any]) -> None:
+        import dataclasses
+
+        try:
+            import hinges
+        except ImportError:  # hinge styles not installed: the build reports it
+            return
+        styles = list(hinges.available_hinge_styles())
+        if style not in styles:
+            raise self.fail(f"[hinge] style = {style!r} is not a hinge style{suggest(style, styles)} "
+                            f"(available: {', '.join(styles)})")
+        try:
+            plain = hinges.get_hinge_style(style)
+        except ThickpanelError:
+            return
+        if dataclasses.is_dataclass(plain):
+            known = [f.name for f in dataclasses.fields(plain) if f.name != "name"]
+            for k in opts:
+                if k not in known:
+                    raise self.fail(f"unknown key [hinge] {k} for style {style!r}{suggest(k, known)} "
+                                    f"(its options: {', '.join(known) or 'none'})")
+        try:
+            hinges.get_hinge_style(style, **opts)
+        except ThickpanelError as exc:
+            raise self.fail(f"[hinge] {exc}") from None
 
     def fold(self) -> FoldSpec:
         t = self.section("fold")
@@ -647,91 +547,3 @@ class _Validator:
         return CheckSpec(v["min_clearance"], v["require_rigid"], v["require_flat_foldable"])
 
 
-# --------------------------------------------------------------------------- reference page
-DOC_BEGIN = "<!-- schema:begin (generated by `python -m thickpanel.design`; do not edit) -->"
-DOC_END = "<!-- schema:end -->"
-
-
-def _fmt_default(k: Key) -> str:
-    if k.required:
-        return "required"
-    if k.default is None:
-        return "-"
-    if isinstance(k.default, bool):
-        return "true" if k.default else "false"
-    if isinstance(k.default, str):
-        return f'`"{k.default}"`'
-    if isinstance(k.default, list):
-        inner = ", ".join(f'"{x}"' if isinstance(x, str) else f"{x:g}" for x in k.default)
-        return f"`[{inner}]`"
-    if isinstance(k.default, dict):
-        return "`{}`"
-    return f"`{k.default:g}`"
-
-
-def schema_markdown() -> str:
-    """The key tables of ``docs/design-file.md``, generated from :data:`SCHEMA`."""
-    lines = [DOC_BEGIN, ""]
-    for sect in ("",) + SECTIONS[:2] + ("panels.override",) + SECTIONS[2:]:
-        keys = [k for k in SCHEMA if k.section == sect]
-        title = "Top level" if not sect else ("`[[panels.override]]` (repeatable)" if sect == "panels.override"
-                                              else f"`[{sect}]`")
-        lines += [f"### {title}", "", "| key | type | unit | default | allowed | meaning |",
-                  "| --- | --- | --- | --- | --- | --- |"]
-        for k in keys:
-            unit = k.unit if k.unit else "-"
-            rng = k.range_text() if k.type != "table" else "table"
-            lines.append(f"| `{k.name}` | {k.type} | {unit} | {_fmt_default(k)} | {rng} | {k.doc} |")
-        lines.append("")
-    lines.append(DOC_END)
-    return "\n".join(lines) + "\n"
-
-
-LAYOUTS_BEGIN = "<!-- layouts:begin (generated from the layout registry; do not edit) -->"
-LAYOUTS_END = "<!-- layouts:end -->"
-
-
-def layouts_markdown() -> str:
-    """Every registered layout with its parameters and defaults, from the generators' signatures."""
-    from .layouts import available_layouts, get_layout
-
-    lines = [LAYOUTS_BEGIN, ""]
-    names = available_layouts()
-    if not names:
-        lines.append("(no layout registered in this installation)")
-    for name in names:
-        fn = get_layout(name)
-        lines += [f"- `family = \"{name}\"` ({fn.__module__}.{fn.__name__}):"]
-        parts = []
-        for pn, p in inspect.signature(fn).parameters.items():
-            if pn in ("tol", "name") or p.kind in (p.VAR_KEYWORD, p.VAR_POSITIONAL):
-                continue
-            parts.append(f"`{pn}`" + ("" if p.default is p.empty else f" = `{p.default!r}`"))
-        lines[-1] += " " + (", ".join(parts) or "no parameters")
-        doc = inspect.getdoc(fn)
-        if doc:
-            lines.append(f"  {doc.splitlines()[0]}")
-    lines += ["", LAYOUTS_END]
-    return "\n".join(lines) + "\n"
-
-
-def update_reference(path: str | Path) -> None:
-    """Rewrite the generated blocks of the reference page ``path`` in place."""
-    p = Path(path)
-    text = p.read_text(encoding="utf-8")
-    for begin, end, block in ((DOC_BEGIN, DOC_END, schema_markdown()),
-                              (LAYOUTS_BEGIN, LAYOUTS_END, layouts_markdown())):
-        i, j = text.find(begin), text.find(end)
-        if i < 0 or j < 0:
-            raise DesignFileError(f"{p}: markers {begin!r} ... {end!r} not found")
-        text = text[:i] + block.rstrip("\n") + text[j + len(end):]
-    tmp = p.with_suffix(p.suffix + ".tmp")
-    tmp.write_text(text, encoding="utf-8")
-    tmp.replace(p)
-
-
-if __name__ == "__main__":
-    if len(sys.argv) == 3 and sys.argv[1] == "--write":
-        update_reference(sys.argv[2])
-    else:
-        sys.stdout.write(schema_markdown())
