@@ -8,12 +8,13 @@ from __future__ import annotations
 
 import numpy as np
 
-from .typing import FloatArray, IntArray
+from .typing import BoolArray, FloatArray, IntArray
 
 __all__ = [
     "polygon_area",
     "polygon_centroid",
     "polygon_is_convex",
+    "loop_measures",
     "segment_candidate_pairs",
     "segment_pair_relations",
     "point_segment_distance",
@@ -71,27 +72,63 @@ def polygon_is_convex(poly: FloatArray, *, angle_tol: float) -> bool:
     return bool(np.all(s >= -np.sin(angle_tol)))
 
 
-def segment_candidate_pairs(a: FloatArray, b: FloatArray, *, pad: float) -> IntArray:
-    """Index pairs (i, j), i < j, of segments whose padded bounding boxes overlap.
-
-    A sort-and-sweep on whichever axis gives fewer candidates, fully vectorised.
+def loop_measures(
+    verts: FloatArray, offsets: IntArray, loop_vertices: IntArray, *, angle_tol: float
+) -> tuple[FloatArray, FloatArray, BoolArray]:
+    """Signed area, centroid and convexity of many closed loops at once (CSR layout).
 
     Parameters
     ----------
-    a, b : (m, 2) float, mm
-        Segment end points.
-    pad : float, mm
-        Each box is grown by this much on every side.
+    verts : (n, 2) float, mm
+    offsets : (f + 1,) int
+        Loop ``q`` is ``loop_vertices[offsets[q]:offsets[q + 1]]``; every loop has >= 1 entry.
+    loop_vertices : (e,) int
+        Vertex indices of the loops, in order.
+    angle_tol : float, rad
+        Corners within this of straight count as convex (as :func:`polygon_is_convex`).
 
     Returns
     -------
-    (p, 2) int
+    area : (f,) float, mm^2
+        Positive for counter-clockwise loops (shoelace formula relative to each loop's first vertex).
+    centroid : (f, 2) float, mm
+        Area centroid (vertex mean where the area vanishes).
+    convex : (f,) bool
     """
-    m = len(a)
-    if m < 2:
-        return np.zeros((0, 2), dtype=np.int64)
-    lo = np.minimum(a, b) - pad
-    hi = np.maximum(a, b) + pad
+    f = len(offsets) - 1
+    counts = np.diff(offsets)
+    owner = np.repeat(np.arange(f), counts)
+    nxt = np.arange(len(loop_vertices)) + 1
+    nxt[offsets[1:] - 1] = offsets[:-1]
+    ref = verts[loop_vertices[offsets[:-1]]]
+    p = verts[loop_vertices] - ref[owner]
+    q = p[nxt]
+    cross = p[:, 0] * q[:, 1] - q[:, 0] * p[:, 1]
+    twice = np.bincount(owner, weights=cross, minlength=f)
+    area = 0.5 * twice
+    cx = np.bincount(owner, weights=(p[:, 0] + q[:, 0]) * cross, minlength=f)
+    cy = np.bincount(owner, weights=(p[:, 1] + q[:, 1]) * cross, minlength=f)
+    mean = np.stack(
+        [np.bincount(owner, weights=p[:, 0], minlength=f), np.bincount(owner, weights=p[:, 1], minlength=f)], 1
+    ) / np.maximum(counts, 1)[:, None]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        cen = np.stack([cx, cy], 1) / (3.0 * twice)[:, None]
+    flat = np.abs(twice) < 1e-300
+    cen[flat] = mean[flat]
+    # convexity: turn from edge k to edge k + 1 never clockwise beyond angle_tol
+    d = q - p
+    dn = d[nxt]
+    turn = d[:, 0] * dn[:, 1] - d[:, 1] * dn[:, 0]
+    norm = np.linalg.norm(d, axis=1) * np.linalg.norm(dn, axis=1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        sn = np.where(norm > 0, turn / np.where(norm > 0, norm, 1.0), 0.0)
+    reflex = np.bincount(owner, weights=(sn < -np.sin(angle_tol)), minlength=f)
+    return np.asarray(area, dtype=np.float64), np.asarray(cen + ref, dtype=np.float64), np.asarray(reflex == 0)
+
+
+def _sweep_pairs(lo: FloatArray, hi: FloatArray) -> IntArray:
+    """Sort-and-sweep broad phase on whichever axis gives fewer candidates."""
+    m = len(lo)
     best: IntArray | None = None
     for axis in (0, 1):
         order = np.argsort(lo[:, axis], kind="stable")
@@ -113,6 +150,83 @@ def segment_candidate_pairs(a: FloatArray, b: FloatArray, *, pad: float) -> IntA
         best = pairs
     assert best is not None
     return best
+
+
+def _grid_pairs(lo: FloatArray, hi: FloatArray, *, max_fill: int) -> IntArray | None:
+    """Uniform-grid broad phase; None when long boxes would fill too many cells."""
+    m = len(lo)
+    ext = np.max(hi - lo, axis=1)
+    cell = float(np.median(ext))
+    span = float(np.max(hi.max(axis=0) - lo.min(axis=0)))
+    if not (cell > 0 and np.isfinite(cell)):
+        return None
+    base = lo.min(axis=0)
+    for _ in range(4):
+        c0 = np.floor((lo - base) / cell).astype(np.int64)
+        c1 = np.floor((hi - base) / cell).astype(np.int64)
+        nxc = c1[:, 0] - c0[:, 0] + 1
+        nyc = c1[:, 1] - c0[:, 1] + 1
+        count = nxc * nyc
+        total = int(count.sum())
+        if total <= max_fill * m:
+            break
+        cell *= 4.0
+        if cell > span:
+            return None
+    else:
+        return None
+    seg = np.repeat(np.arange(m), count)
+    local = np.arange(total) - np.repeat(np.cumsum(count) - count, count)
+    cx = c0[seg, 0] + local % nxc[seg]
+    cy = c0[seg, 1] + local // nxc[seg]
+    key = cx * (int(c1[:, 1].max()) + 1) + cy
+    order = np.argsort(key, kind="stable")
+    key_s = key[order]
+    seg_s = seg[order]
+    pos = np.arange(total)
+    end = np.searchsorted(key_s, key_s, side="right")
+    counts = end - pos - 1
+    npair = int(counts.sum())
+    first = np.repeat(pos, counts)
+    second = first + 1 + (np.arange(npair) - np.repeat(np.cumsum(counts) - counts, counts))
+    i = seg_s[first]
+    j = seg_s[second]
+    a = np.minimum(i, j)
+    b = np.maximum(i, j)
+    uniq = np.unique(a * m + b)
+    a, b = uniq // m, uniq % m
+    keep = np.all(lo[a] <= hi[b], axis=1) & np.all(lo[b] <= hi[a], axis=1)
+    return np.stack([a[keep], b[keep]], axis=1).astype(np.int64)
+
+
+def segment_candidate_pairs(a: FloatArray, b: FloatArray, *, pad: float) -> IntArray:
+    """Index pairs (i, j), i < j, of segments whose padded bounding boxes overlap.
+
+    A uniform-grid hash (cell = median box size) for large inputs, falling back to a
+    sort-and-sweep when a few long segments would fill the grid; fully vectorised.
+
+    Parameters
+    ----------
+    a, b : (m, 2) float, mm
+        Segment end points.
+    pad : float, mm
+        Each box is grown by this much on every side.
+
+    Returns
+    -------
+    (p, 2) int
+        Sorted by (i, j) for the grid path; every overlapping pair exactly once.
+    """
+    m = len(a)
+    if m < 2:
+        return np.zeros((0, 2), dtype=np.int64)
+    lo = np.minimum(a, b) - pad
+    hi = np.maximum(a, b) + pad
+    if m >= 256:
+        pairs = _grid_pairs(lo, hi, max_fill=16)
+        if pairs is not None:
+            return pairs
+    return _sweep_pairs(lo, hi)
 
 
 def point_segment_distance(p: FloatArray, a: FloatArray, b: FloatArray) -> tuple[FloatArray, FloatArray]:

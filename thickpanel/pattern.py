@@ -28,7 +28,7 @@ import networkx as nx
 import numpy as np
 
 from .errors import PatternError
-from .geometry2d import polygon_area, polygon_centroid, polygon_is_convex
+from .geometry2d import loop_measures
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray, IntArray
 
@@ -292,7 +292,7 @@ class CreasePattern:
     @cached_property
     def folding(self) -> np.ndarray:
         """(m,) bool: crease is mountain or valley."""
-        return _readonly(np.array([k in FOLDING_KINDS for k in self._kinds], dtype=bool))
+        return _readonly(np.isin(self.kind_array, tuple(FOLDING_KINDS)))
 
     @cached_property
     def crease_lengths(self) -> FloatArray:
@@ -381,33 +381,39 @@ class CreasePattern:
         return tuple(int(x) for x in creases[offsets[v] : offsets[v + 1]])
 
     @cached_property
-    def _faces(self) -> tuple[list[list[int]], np.ndarray]:
-        """Half-edge cycles (faces) and the face index of every half-edge."""
+    def _faces(self) -> dict[str, Any]:
+        """Faces as half-edge cycles in CSR layout, with their measures.
+
+        Keys: ``offsets`` (F + 1,), ``he`` (2m,) half-edges of face ``f`` in cycle order at
+        ``offsets[f]:offsets[f + 1]``, ``face_of`` (2m,), ``area`` (F,) mm^2, ``centroid`` (F, 2),
+        ``convex`` (F,) bool. Faces are numbered by their smallest half-edge.
+        """
         he = self._half_edges
-        nxt = he["next"]
-        face_of = np.full(len(nxt), -1, dtype=np.int64)
-        faces: list[list[int]] = []
-        nxt_l = nxt.tolist()
-        for h0 in range(len(nxt_l)):
-            if face_of[h0] >= 0:
+        nxt_l = he["next"].tolist()
+        n_he = len(nxt_l)
+        seen = [False] * n_he
+        order: list[int] = []
+        starts: list[int] = []
+        for h0 in range(n_he):
+            if seen[h0]:
                 continue
-            cyc = [h0]
-            face_of[h0] = len(faces)
-            h = nxt_l[h0]
-            while h != h0:
-                if face_of[h] >= 0:  # cannot happen for a permutation; guards corrupt input
-                    break
-                face_of[h] = len(faces)
-                cyc.append(h)
+            starts.append(len(order))
+            h = h0
+            while not seen[h]:  # a permutation: every cycle returns to h0
+                seen[h] = True
+                order.append(h)
                 h = nxt_l[h]
-            faces.append(cyc)
-        return faces, face_of
+        offsets = np.array([*starts, n_he], dtype=np.int64)
+        cyc = np.array(order, dtype=np.int64)
+        counts = np.diff(offsets)
+        face_of = np.empty(n_he, dtype=np.int64)
+        face_of[cyc] = np.repeat(np.arange(len(starts)), counts)
+        area, cen, convex = loop_measures(self._vertices, offsets, he["origin"][cyc], angle_tol=self.tol.angle)
+        return {"offsets": offsets, "he": cyc, "face_of": face_of, "area": area, "centroid": cen, "convex": convex}
 
     @cached_property
     def _face_areas(self) -> FloatArray:
-        faces, _ = self._faces
-        origin = self._half_edges["origin"]
-        return np.array([polygon_area(self._vertices[origin[f]]) for f in faces])
+        return np.asarray(self._faces["area"])
 
     @cached_property
     def outer_faces(self) -> tuple[int, ...]:
@@ -415,32 +421,48 @@ class CreasePattern:
         areas = self._face_areas
         return tuple(int(i) for i in np.nonzero(areas <= 0)[0])
 
+    def face_loop(self, f: int) -> IntArray:
+        """Vertex loop of raw face ``f`` (half-edge cycle order, not rotated)."""
+        fd = self._faces
+        hs = fd["he"][fd["offsets"][f] : fd["offsets"][f + 1]]
+        return np.asarray(self._half_edges["origin"][hs])
+
+    @cached_property
+    def _face_to_panel(self) -> IntArray:
+        inner = self._face_areas > 0
+        f2p = np.full(len(inner), -1, dtype=np.int64)
+        f2p[inner] = np.arange(int(inner.sum()))
+        return f2p
+
     @cached_property
     def panels(self) -> tuple[Panel, ...]:
         """The bounded faces, in a deterministic order (first half-edge met)."""
-        faces, _ = self._faces
+        fd = self._faces
         origin = self._half_edges["origin"]
-        outer = set(self.outer_faces)
+        offsets = fd["offsets"]
+        loops_all = origin[fd["he"]].tolist()
+        edges_all = (fd["he"] // 2).tolist()
+        starts = offsets.tolist()
+        area = fd["area"].tolist()
+        cen = fd["centroid"].tolist()
+        convex = fd["convex"].tolist()
         result: list[Panel] = []
-        self._face_to_panel = np.full(len(faces), -1, dtype=np.int64)
-        for fi, cyc in enumerate(faces):
-            if fi in outer:
-                continue
-            loop = [int(origin[h]) for h in cyc]
-            edges = [h // 2 for h in cyc]
-            k = int(np.argmin(loop))
-            loop = loop[k:] + loop[:k]
-            edges = edges[k:] + edges[:k]
-            poly = self._vertices[loop]
-            self._face_to_panel[fi] = len(result)
+        for fi in np.nonzero(self._face_to_panel >= 0)[0].tolist():
+            a, b = starts[fi], starts[fi + 1]
+            loop = loops_all[a:b]
+            edges = edges_all[a:b]
+            k = loop.index(min(loop))
+            if k:
+                loop = loop[k:] + loop[:k]
+                edges = edges[k:] + edges[:k]
             result.append(
                 Panel(
                     index=len(result),
                     loop=tuple(loop),
-                    edges=tuple(int(e) for e in edges),
-                    area=float(polygon_area(poly)),
-                    centroid=tuple(float(x) for x in polygon_centroid(poly)),  # type: ignore[arg-type]
-                    convex=polygon_is_convex(poly, angle_tol=self.tol.angle),
+                    edges=tuple(edges),
+                    area=area[fi],
+                    centroid=(cen[fi][0], cen[fi][1]),
+                    convex=bool(convex[fi]),
                 )
             )
         return tuple(result)
@@ -452,8 +474,7 @@ class CreasePattern:
     @cached_property
     def crease_panels(self) -> IntArray:
         """(m, 2) int: (left, right) panel of each crease's forward direction, -1 outside."""
-        self.panels  # noqa: B018  (fills _face_to_panel)
-        _, face_of = self._faces
+        face_of = self._faces["face_of"]
         f2p = self._face_to_panel
         left = f2p[face_of[0::2]]
         right = f2p[face_of[1::2]]
@@ -462,11 +483,9 @@ class CreasePattern:
     @cached_property
     def border_vertices(self) -> IntArray:
         """Vertices on the outside of the sheet or on a cut (sorted)."""
-        faces, _ = self._faces
-        origin = self._half_edges["origin"]
         on = np.zeros(self.n_vertices, dtype=bool)
-        for fi in self.outer_faces:
-            on[origin[faces[fi]]] = True
+        outer = self._face_areas[self._faces["face_of"]] <= 0
+        on[self._half_edges["origin"][outer]] = True
         cut = np.array([k == "cut" for k in self._kinds], dtype=bool)
         on[self._creases[cut].reshape(-1)] = True
         return _readonly(np.nonzero(on)[0])
@@ -488,14 +507,16 @@ class CreasePattern:
         seam (``crease`` = seam's ``a``, ``seam`` = ``b``, ``kind`` = the seam's kind).
         """
         g = nx.Graph()
-        for p in self.panels:
-            g.add_node(p.index, id=p.id)
+        g.add_nodes_from((i, {"id": pid(i)}) for i in range(self.n_panels))
         cp = self.crease_panels
-        for c, kind in enumerate(self._kinds):
-            if kind in ("mountain", "valley", "flat"):
-                a, b = int(cp[c, 0]), int(cp[c, 1])
-                if a >= 0 and b >= 0 and a != b:
-                    g.add_edge(a, b, crease=c, kind=kind)
+        joins = np.isin(self.kind_array, ("mountain", "valley", "flat"))
+        joins &= (cp[:, 0] >= 0) & (cp[:, 1] >= 0) & (cp[:, 0] != cp[:, 1])
+        sel = np.nonzero(joins)[0]
+        kinds = self._kinds
+        g.add_edges_from(
+            (a, b, {"crease": c, "kind": kinds[c]})
+            for a, b, c in zip(cp[sel, 0].tolist(), cp[sel, 1].tolist(), sel.tolist(), strict=True)
+        )
         for s in self._seams:
             pa = int(max(cp[s.a]))
             pb = int(max(cp[s.b]))

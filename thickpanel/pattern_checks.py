@@ -199,74 +199,86 @@ def _topology_findings(cp: CreasePattern) -> list[Finding]:
         out.append(Finding("empty", (), None, "the pattern has no creases"))
         return out
     # faces, border and panels
-    faces, face_of = cp._faces
+    fd = cp._faces
+    face_of = fd["face_of"]
+    foff = fd["offsets"]
     he = cp._half_edges
     origin = he["origin"]
-    outer = set(cp.outer_faces)
     kinds = cp.kinds
-    on_outer_h = np.isin(face_of, list(outer))
-    for k in range(len(c)):
-        fwd, bwd = on_outer_h[2 * k], on_outer_h[2 * k + 1]
-        kind = kinds[k]
-        if (fwd or bwd) and kind not in ("border", "cut") and not (fwd and bwd):
-            out.append(
-                Finding(
-                    "open_border",
-                    (cid(k),),
-                    _pt(v[c[k, 0]]),
-                    f"crease {cid(k)} ({kind}) lies on the outside of the sheet: the border is open there "
-                    "(an outside edge must be of kind 'border' or 'cut')",
-                )
+    kind_arr = cp.kind_array
+    outer_face = fd["area"] <= 0
+    on_outer_h = outer_face[face_of]
+    fwd, bwd = on_outer_h[0::2], on_outer_h[1::2]
+    edge_kind = np.isin(kind_arr, ("border", "cut"))
+    open_b = (fwd ^ bwd) & ~edge_kind
+    inner_b = (kind_arr == "border") & ~(fwd | bwd)
+    for k in np.nonzero(open_b)[0][:20].tolist():
+        out.append(
+            Finding(
+                "open_border",
+                (cid(k),),
+                _pt(v[c[k, 0]]),
+                f"crease {cid(k)} ({kinds[k]}) lies on the outside of the sheet: the border is open there "
+                "(an outside edge must be of kind 'border' or 'cut')",
             )
-        elif kind == "border" and not (fwd or bwd):
-            out.append(
-                Finding(
-                    "inner_border",
-                    (cid(k),),
-                    _pt(v[c[k, 0]]),
-                    f"crease {cid(k)} is of kind 'border' but has panels on both sides",
-                )
+        )
+    for k in np.nonzero(inner_b)[0][:20].tolist():
+        out.append(
+            Finding(
+                "inner_border",
+                (cid(k),),
+                _pt(v[c[k, 0]]),
+                f"crease {cid(k)} is of kind 'border' but has panels on both sides",
             )
+        )
+    # faces whose boundary passes a vertex twice: sort (face, vertex) entries and look for repeats
+    cyc_face = np.repeat(np.arange(len(foff) - 1), np.diff(foff))
+    cyc_vert = origin[fd["he"]]
+    order = np.lexsort((cyc_vert, cyc_face))
+    sf, sv = cyc_face[order], cyc_vert[order]
+    rep = (sf[1:] == sf[:-1]) & (sv[1:] == sv[:-1])
+    rep_face, rep_vert = sf[1:][rep], sv[1:][rep]
     if ncomp == 1:
-        for fi in outer:
-            loop = origin[faces[fi]]
-            cnt = Counter(loop.tolist())
-            touch = [x for x, m in cnt.items() if m > 1 and deg[x] > 1]
-            for x in touch[:5]:
-                out.append(
-                    Finding(
-                        "self_touching_border",
-                        (vid(x),),
-                        _pt(v[x]),
-                        f"the border touches itself at {vid(x)} {_fmt(v[x])}",
-                    )
-                )
-    tol = cp.tol
-    for p in cp.panels:
-        if abs(p.area) < tol.area:
-            out.append(
-                Finding("zero_area", (p.id,), p.centroid, f"panel {p.id} has zero area ({p.area:.3g} mm^2)")
-            )
-        if len(set(p.loop)) != len(p.loop):
-            rep = [x for x, m in Counter(p.loop).items() if m > 1]
+        sel = outer_face[rep_face] & (deg[rep_vert] > 1)
+        touch = list(dict.fromkeys(rep_vert[sel].tolist()))
+        for x in touch[:5]:
             out.append(
                 Finding(
-                    "non_simple_panel",
-                    (p.id,) + tuple(vid(x) for x in rep),
-                    p.centroid,
-                    f"panel {p.id} is not simple: its boundary passes {', '.join(vid(x) for x in rep)} twice",
+                    "self_touching_border",
+                    (vid(x),),
+                    _pt(v[x]),
+                    f"the border touches itself at {vid(x)} {_fmt(v[x])}",
                 )
             )
+    tol = cp.tol
+    f2p = cp._face_to_panel
+    areas = fd["area"]
+    for fi in np.nonzero((f2p >= 0) & (np.abs(areas) < tol.area))[0][:20].tolist():
+        p = cp.panels[int(f2p[fi])]
+        out.append(Finding("zero_area", (p.id,), p.centroid, f"panel {p.id} has zero area ({p.area:.3g} mm^2)"))
+    bad_faces = [int(f) for f in dict.fromkeys(rep_face[f2p[rep_face] >= 0].tolist())]
+    for fi in bad_faces[:20]:
+        p = cp.panels[int(f2p[fi])]
+        reps = sorted(set(rep_vert[rep_face == fi].tolist()))
+        out.append(
+            Finding(
+                "non_simple_panel",
+                (p.id,) + tuple(vid(x) for x in reps),
+                p.centroid,
+                f"panel {p.id} is not simple: its boundary passes {', '.join(vid(x) for x in reps)} twice",
+            )
+        )
+    faces_n = len(foff) - 1
     # Euler's formula for a planar graph with ncomp pieces: V - E + F = 1 + ncomp
     nv = int(used.sum())
-    euler = nv - len(c) + len(faces)
+    euler = nv - len(c) + faces_n
     if ncomp >= 1 and euler != 1 + ncomp:
         out.append(
             Finding(
                 "euler",
                 (),
                 None,
-                f"Euler's formula fails: V - E + F = {nv} - {len(c)} + {len(faces)} = {euler}, "
+                f"Euler's formula fails: V - E + F = {nv} - {len(c)} + {faces_n} = {euler}, "
                 f"expected {1 + ncomp}; the drawing is not a plane graph (crossing creases?)",
             )
         )
@@ -310,22 +322,23 @@ def _topology_findings(cp: CreasePattern) -> list[Finding]:
             )
     # sign of target angles
     ta = cp.target_angles
-    for k in np.nonzero(np.isfinite(ta))[0].tolist():
+    with np.errstate(invalid="ignore"):
+        bad_t = np.isfinite(ta) & (
+            (np.abs(ta) > np.pi + tol.angle)
+            | ((kind_arr == "valley") & (ta < 0))
+            | ((kind_arr == "mountain") & (ta > 0))
+        )
+    for k in np.nonzero(bad_t)[0][:20].tolist():
         kind = kinds[k]
-        if (
-            abs(ta[k]) > np.pi + tol.angle
-            or (kind == "valley" and ta[k] < 0)
-            or (kind == "mountain" and ta[k] > 0)
-        ):
-            out.append(
-                Finding(
-                    "target_angle",
-                    (cid(k),),
-                    None,
-                    f"crease {cid(k)} ({kind}) has target angle {np.degrees(ta[k]):.6g} deg; valleys take "
-                    "0..180 deg, mountains -180..0 deg",
-                )
+        out.append(
+            Finding(
+                "target_angle",
+                (cid(k),),
+                None,
+                f"crease {cid(k)} ({kind}) has target angle {np.degrees(ta[k]):.6g} deg; valleys take "
+                "0..180 deg, mountains -180..0 deg",
             )
+        )
     return out
 
 
