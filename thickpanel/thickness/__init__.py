@@ -1,0 +1,178 @@
+"""Thickness methods: turn a zero-thickness crease pattern into a :class:`ThickPlan`.
+
+Registry of methods (one module each, formulas and sources in their docstrings and in
+``docs/methods.md``): ``tapered``, ``offset-panel``, ``offset-crease``, ``membrane-gap``,
+``hinge-shift`` and the ``plain`` baseline. :func:`make_plan` builds one by name;
+:func:`methods_for` says which apply to a pattern and why, in recommendation order.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any
+
+from ..errors import ThicknessError, ThickpanelError
+from ..tolerances import DEFAULT_TOL, Tolerances
+from . import hinge_shift, membrane_gap, offset_crease, offset_panel, plain, tapered
+from .plan import CutPlane, HingeLine, Slab, Standoff, ThickPlan
+
+if TYPE_CHECKING:
+    from ..pattern import CreasePattern
+    from ..poses import FoldPath
+
+__all__ = [
+    "make_plan",
+    "available_methods",
+    "methods_for",
+    "MethodAdvice",
+    "register_method",
+    "ThickPlan",
+    "Slab",
+    "HingeLine",
+    "CutPlane",
+    "Standoff",
+]
+
+MethodFn = Callable[..., ThickPlan]
+_REGISTRY: dict[str, MethodFn] = {}
+# recommendation order: exact full-range methods first, the baseline last
+_ORDER = ("offset-panel", "offset-crease", "tapered", "hinge-shift", "membrane-gap", "plain")
+_RIGID = frozenset({"offset-panel", "offset-crease", "tapered", "hinge-shift"})
+
+
+def register_method(name: str, fn: MethodFn) -> MethodFn:
+    """Register a thickness method under ``name``; a duplicate name is refused."""
+    if name in _REGISTRY and _REGISTRY[name] is not fn:
+        raise ValueError(f"thickness method {name!r} is already registered")
+    _REGISTRY[name] = fn
+    return fn
+
+
+for _mod in (tapered, offset_panel, offset_crease, membrane_gap, hinge_shift, plain):
+    register_method(_mod.NAME, _mod.build)
+
+
+def available_methods() -> list[str]:
+    """Names of the registered thickness methods, sorted."""
+    return sorted(_REGISTRY)
+
+
+def make_plan(
+    pattern: CreasePattern,
+    method: str,
+    *,
+    thickness: float | Any,
+    target_fold: float,
+    path: FoldPath | None = None,
+    tol: Tolerances = DEFAULT_TOL,
+    **options: Any,
+) -> ThickPlan:
+    """Build the thick plan of ``pattern`` with ``method``.
+
+    Parameters
+    ----------
+    pattern : CreasePattern
+    method : str
+        One of :func:`available_methods`.
+    thickness : float or mapping panel -> float, mm
+    target_fold : float, rad
+        Largest fold magnitude the plan must reach.
+    path : FoldPath, optional
+        Zero-thickness fold path; its last state gives final crease angles and layer orders.
+    **options
+        Method options (see each module's ``build``).
+
+    Raises
+    ------
+    ThicknessError
+        Unknown method, bad thickness, a method that does not apply, an unreachable target.
+    """
+    fn = _REGISTRY.get(method)
+    if fn is None:
+        names = ", ".join(available_methods())
+        raise ThicknessError(f"unknown thickness method {method!r}; available methods: {names}")
+    try:
+        return fn(pattern, thickness=thickness, target_fold=target_fold, path=path, tol=tol, **options)
+    except TypeError as exc:
+        if "unexpected keyword" in str(exc):
+            raise ThicknessError(f"method {method}: {exc}") from None
+        raise
+
+
+@dataclass(frozen=True)
+class MethodAdvice:
+    """Whether a method applies to a pattern.
+
+    Attributes
+    ----------
+    method : str
+    applies : bool
+    reason : str
+        Why it does or does not apply.
+    reachable : float, rad
+        Largest fold the method reaches on this pattern (0 when it does not apply).
+    """
+
+    method: str
+    applies: bool
+    reason: str
+    reachable: float
+
+
+def _rigid_verdict(pattern: CreasePattern) -> tuple[str, str]:
+    try:
+        from ..kinematics import rigid_foldability  # type: ignore[attr-defined]
+    except ImportError:
+        return "unknown", "rigid-foldability check not available"
+    try:
+        v = rigid_foldability(pattern)
+    except ThickpanelError as exc:
+        return "unknown", str(exc)
+    return str(v.kind), str(getattr(v, "reason", ""))
+
+
+def methods_for(
+    pattern: CreasePattern,
+    target_fold: float,
+    *,
+    thickness: float | Any,
+    path: FoldPath | None = None,
+    tol: Tolerances = DEFAULT_TOL,
+) -> list[MethodAdvice]:
+    """Every registered method with applies / does not apply, the reason and the reachable fold.
+
+    Applicable methods come first in recommendation order (exact full-range methods before the
+    approximate ones, the ``plain`` baseline last).
+    """
+    kind, why = _rigid_verdict(pattern)
+    out: list[MethodAdvice] = []
+    names = [n for n in _ORDER if n in _REGISTRY] + [n for n in available_methods() if n not in _ORDER]
+    for name in names:
+        if name in _RIGID and kind == "locked":
+            out.append(MethodAdvice(name, False, f"the pattern is not rigidly foldable: {why}", 0.0))
+            continue
+        try:
+            plan = make_plan(pattern, name, thickness=thickness, target_fold=target_fold, path=path, tol=tol)
+        except ThicknessError as exc:
+            reach = 0.0
+            if name == "tapered" and target_fold >= math.pi - tol.angle:
+                try:
+                    t = tapered.panel_thicknesses(pattern, thickness)
+                    reach = tapered.reachable_limit(pattern, t, "mid")[0]
+                except ThicknessError:
+                    reach = 0.0
+            out.append(MethodAdvice(name, False, str(exc), reach))
+            continue
+        reach = float(plan.meta.get("reachable", plan.target_fold))
+        if name == "plain":
+            reason = "baseline only: slabs meet on the inner side of every fold"
+            reach = 0.0
+        elif reach < plan.target_fold - tol.angle:
+            reason = f"applies up to {math.degrees(reach):.4g} deg of the {math.degrees(target_fold):.4g} deg target"
+        else:
+            reason = plan.notes[0] if plan.notes else "applies"
+        out.append(MethodAdvice(name, True, reason, reach))
+    out.sort(key=lambda a: (not a.applies, a.method == "plain"))
+    return out

@@ -1,0 +1,176 @@
+"""Layer order of a folded stack, read from a fold state near the final fold.
+
+Panels are projected onto the plane of the base panel; for every two panels whose projections
+overlap, the one whose reference plane is higher over the overlap lies above. The "above" relation
+is made a directed graph; its longest-path levels give each panel its layer, stacking thicknesses
+(a cycle means no layer order exists). Stack heights are along the base panel's normal.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import networkx as nx
+import numpy as np
+
+from ..collide import convex_parts, sweep_pairs
+from ..errors import ThicknessError
+from ..geometry2d import polygon_area, polygon_centroid
+from ..pattern import CreasePattern, pid
+from ..poses import FoldState
+from ..tolerances import DEFAULT_TOL, Tolerances
+from ..typing import FloatArray, IntArray
+
+__all__ = ["LayerOrder", "layer_order", "clip_convex"]
+
+
+@dataclass(frozen=True)
+class LayerOrder:
+    """Stack order of the panels of a folded state.
+
+    Attributes
+    ----------
+    level : (P,) int
+        Layer index (0 = bottom) by longest chain of panels below.
+    base : (P,) float, mm
+        Stack height of each slab's bottom face with thicknesses stacked (bottom layer at 0).
+    facing : (P,) int
+        +1 when the panel's flat-frame +z points along the stack normal, -1 when it is flipped.
+    above : list of (int, int)
+        Overlapping pairs (lower, upper).
+    tucked : dict crease -> int
+        Panels lying between the two panels of each folding crease near its midpoint.
+    """
+
+    level: IntArray
+    base: FloatArray
+    facing: IntArray
+    above: list[tuple[int, int]]
+    tucked: dict[int, int] = field(default_factory=dict)
+
+
+def clip_convex(subject: FloatArray, clip: FloatArray) -> FloatArray:
+    """Intersection of two convex counter-clockwise polygons (Sutherland & Hodgman 1974), (k, 2)."""
+    out = np.asarray(subject, float)
+    c = np.asarray(clip, float)
+    for i in range(len(c)):
+        if len(out) == 0:
+            break
+        a, b = c[i], c[(i + 1) % len(c)]
+        e = b - a
+        side = e[0] * (out[:, 1] - a[1]) - e[1] * (out[:, 0] - a[0])
+        res = []
+        for k in range(len(out)):
+            p, q = out[k], out[(k + 1) % len(out)]
+            sp, sq = side[k], side[(k + 1) % len(out)]
+            if sp >= 0:
+                res.append(p)
+            if (sp >= 0) != (sq >= 0):
+                w = sp / (sp - sq)
+                res.append(p + w * (q - p))
+        out = np.array(res).reshape(-1, 2)
+    return out
+
+
+def layer_order(
+    pattern: CreasePattern,
+    state: FoldState,
+    *,
+    thickness: FloatArray | None = None,
+    poses: FloatArray | None = None,
+    tol: Tolerances = DEFAULT_TOL,
+) -> LayerOrder:
+    """Layer order of the panels in ``state`` (near a flat fold).
+
+    Parameters
+    ----------
+    thickness : (P,) float, mm, optional
+        Slab thickness per panel for the stacked heights (default 1 mm each).
+    poses : (P, 4, 4) float, optional
+        Override of ``state.poses``.
+
+    Raises
+    ------
+    ThicknessError
+        When the overlaps form a cycle (no layer order), naming panels of the cycle.
+    """
+    n = pattern.n_panels
+    t = np.ones(n) if thickness is None else np.asarray(thickness, float)
+    ps = np.asarray(state.poses if poses is None else poses)
+    base_rot = ps[state.base_panel, :3, :3]
+    to_stack = base_rot.T  # world -> base panel's frame
+    facing = np.empty(n, dtype=np.int64)
+    parts: list[tuple[int, FloatArray]] = []
+    planes = np.empty((n, 4))
+    for p in range(n):
+        r = to_stack @ ps[p, :3, :3]
+        o = to_stack @ (ps[p, :3, 3] - ps[state.base_panel, :3, 3])
+        nz = r[:, 2]
+        facing[p] = 1 if nz[2] >= 0 else -1
+        planes[p] = (*nz, float(nz @ o))
+        poly = pattern.panel_polygon(p)
+        world = poly @ r[:2, :2].T + o[:2]
+        if polygon_area(world) < 0:
+            world = world[::-1]
+        for part in convex_parts(world, tol=tol):
+            parts.append((p, part))
+    owners = np.array([p for p, _ in parts])
+    lo = np.array([np.append(q.min(axis=0), -1.0) for _, q in parts])
+    hi = np.array([np.append(q.max(axis=0), 1.0) for _, q in parts])
+    scale = float(np.ptp(pattern.vertices, axis=0).max()) or 1.0
+    pairs = sweep_pairs(lo, hi, pad=-tol.length * scale)
+    area_tol = tol.length * scale
+    votes: dict[tuple[int, int], float] = {}
+    for i, j in pairs:
+        a, b = int(owners[i]), int(owners[j])
+        if a == b:
+            continue
+        inter = clip_convex(parts[i][1], parts[j][1])
+        if len(inter) < 3:
+            continue
+        area = polygon_area(inter)
+        if area <= area_tol:
+            continue
+        c = polygon_centroid(inter)
+
+        def height(p: int, c: FloatArray = c) -> float:
+            nx_, ny_, nz_, d = planes[p]
+            return float((d - nx_ * c[0] - ny_ * c[1]) / nz_) if abs(nz_) > tol.angle else 0.0
+
+        dz = height(b) - height(a)
+        key = (min(a, b), max(a, b))
+        votes[key] = votes.get(key, 0.0) + (dz if a < b else -dz) * area
+    g = nx.DiGraph()
+    g.add_nodes_from(range(n))
+    above: list[tuple[int, int]] = []
+    for (a, b), v in sorted(votes.items()):
+        if v > 0:
+            g.add_edge(a, b)
+            above.append((a, b))
+        elif v < 0:
+            g.add_edge(b, a)
+            above.append((b, a))
+    try:
+        topo = list(nx.lexicographical_topological_sort(g))
+    except nx.NetworkXUnfeasible:
+        cyc = nx.find_cycle(g)
+        names = ", ".join(pid(u) for u, _ in cyc[:6])
+        raise ThicknessError(f"no layer order exists: panels {names} overlap each other in a cycle") from None
+    level = np.zeros(n, dtype=np.int64)
+    base = np.zeros(n)
+    for u in topo:
+        for w in g.successors(u):
+            level[w] = max(level[w], level[u] + 1)
+            base[w] = max(base[w], base[u] + t[u])
+    tucked: dict[int, int] = {}
+    cp = pattern.crease_panels
+    for ci in range(pattern.n_creases):
+        if not pattern.folding[ci]:
+            continue
+        ca, cb = int(cp[ci, 0]), int(cp[ci, 1])
+        if ca < 0 or cb < 0:
+            continue
+        lo_l, hi_l = sorted((int(level[ca]), int(level[cb])))
+        between = {int(x) for pair in above if ca in pair or cb in pair for x in pair}
+        tucked[ci] = int(sum(1 for x in between if lo_l < int(level[x]) < hi_l))
+    return LayerOrder(level, base, facing, above, tucked)
