@@ -16,6 +16,7 @@ reference surface, or a shifted hinge line given by a thickness method.
 
 from __future__ import annotations
 
+import weakref
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
@@ -33,6 +34,8 @@ __all__ = [
     "FoldState",
     "FoldPath",
     "rotation_about_line",
+    "rotations_about_lines",
+    "edge_transforms",
     "spanning_tree",
     "default_base_panel",
     "compose_poses",
@@ -71,6 +74,40 @@ def rotation_about_line(point: FloatArray, direction: FloatArray, angle: float) 
     return t
 
 
+def rotations_about_lines(points: FloatArray, directions: FloatArray, angles: FloatArray) -> FloatArray:
+    """Batch of 4x4 rigid transforms rotating by ``angles`` about lines (vectorised Rodrigues).
+
+    Parameters
+    ----------
+    points : (k, 3) float, mm
+    directions : (k, 3) float, unit vectors (not normalised here)
+    angles : (k,) float, rad
+
+    Returns
+    -------
+    (k, 4, 4) float
+    """
+    d = np.asarray(directions, dtype=float)
+    x, y, z = d[:, 0], d[:, 1], d[:, 2]
+    c, s = np.cos(angles), np.sin(angles)
+    C = 1.0 - c
+    k = len(d)
+    t = np.zeros((k, 4, 4))
+    t[:, 0, 0] = c + x * x * C
+    t[:, 0, 1] = x * y * C - z * s
+    t[:, 0, 2] = x * z * C + y * s
+    t[:, 1, 0] = y * x * C + z * s
+    t[:, 1, 1] = c + y * y * C
+    t[:, 1, 2] = y * z * C - x * s
+    t[:, 2, 0] = z * x * C - y * s
+    t[:, 2, 1] = z * y * C + x * s
+    t[:, 2, 2] = c + z * z * C
+    t[:, 3, 3] = 1.0
+    p = np.asarray(points, dtype=float)
+    t[:, :3, 3] = p - np.einsum("kij,kj->ki", t[:, :3, :3], p)
+    return t
+
+
 def default_base_panel(pattern: CreasePattern) -> int:
     """The panel whose centroid is nearest the centroid of the whole sheet (largest on ties)."""
     cents = np.array([p.centroid for p in pattern.panels])
@@ -84,7 +121,7 @@ def spanning_tree(pattern: CreasePattern, base: int) -> list[tuple[int, int, int
     """Breadth-first tree edges ``(parent, child, crease)`` from ``base`` over the panel graph.
 
     Seams are used only if needed to reach a panel. Neighbours are visited in increasing panel
-    index so the tree is deterministic.
+    index so the tree is deterministic. Parents always come before their children.
     """
     g = pattern.panel_graph
     if base not in g:
@@ -119,6 +156,78 @@ def _hinge_axis(pattern: CreasePattern, crease: int) -> tuple[FloatArray, FloatA
     return a, b - a
 
 
+def _default_axes(pattern: CreasePattern) -> tuple[FloatArray, FloatArray]:
+    """(m, 3) points and unit forward directions of every crease line at z = 0."""
+    m = pattern.n_creases
+    pts = np.zeros((m, 3))
+    dirs = np.zeros((m, 3))
+    pts[:, :2] = pattern.vertices[pattern.creases[:, 0]]
+    dirs[:, :2] = pattern.crease_directions
+    return pts, dirs
+
+
+def edge_transforms(
+    pattern: CreasePattern,
+    parents: IntArray,
+    children: IntArray,
+    creases: IntArray,
+    angles: FloatArray,
+    *,
+    axis_points: FloatArray | None = None,
+    axis_dirs: FloatArray | None = None,
+) -> FloatArray:
+    """Relative transforms ``M`` with ``pose[child] = pose[parent] @ M`` across panel-graph edges.
+
+    An ordinary crease ``c`` rotates the child about the crease line by ``+rho`` when the child
+    lies to the left of the crease's forward direction and by ``-rho`` otherwise. A seam (edge
+    whose ``crease`` is the seam's ``a``) joins panel X on crease ``a`` to panel Y on crease ``b``;
+    the fold angle is stored at ``angles[a]``. With ``E(b->a)`` the planar motion taking crease
+    ``b`` onto crease ``a`` vertex for vertex, ``M(X->Y) = E(b->a) @ Rot(line b, +-rho)`` with the
+    sign from Y's side of ``b``, and ``M(Y->X) = E(a->b) @ Rot(line a, +-rho)`` with the sign from
+    X's side of ``a``; the two are inverse to each other because E keeps orientation and X and Y
+    lie on opposite sides of the joined hinge.
+
+    Parameters
+    ----------
+    parents, children, creases : (k,) int
+        Edge list; ``creases`` holds the panel graph's ``crease`` attribute (seam ``a`` for seams).
+    angles : (m,) float, rad
+    axis_points, axis_dirs : (m, 3) float, optional
+        Hinge lines per crease (mm; unit directions along the crease's forward direction).
+
+    Returns
+    -------
+    (k, 4, 4) float
+    """
+    if axis_points is None or axis_dirs is None:
+        axis_points, axis_dirs = _default_axes(pattern)
+    cp = pattern.crease_panels
+    parents = np.asarray(parents, dtype=np.int64)
+    children = np.asarray(children, dtype=np.int64)
+    creases = np.asarray(creases, dtype=np.int64)
+    line = creases.copy()
+    emap = np.zeros(len(creases), dtype=bool)
+    e_from = np.zeros(len(creases), dtype=np.int64)
+    e_to = np.zeros(len(creases), dtype=np.int64)
+    seam_of = {s.a: s for s in pattern.seams}
+    for k, c in enumerate(creases.tolist() if seam_of else ()):
+        s = seam_of.get(c)
+        if s is None:
+            continue
+        emap[k] = True
+        if int(max(cp[s.b])) == children[k]:  # child on crease b: rotate about b, then map b onto a
+            line[k], e_from[k], e_to[k] = s.b, s.b, s.a
+        else:  # child on crease a: rotate about a, then map a onto b
+            line[k], e_from[k], e_to[k] = s.a, s.a, s.b
+    sign = np.where(cp[line, 0] == children, 1.0, -1.0)
+    m = rotations_about_lines(axis_points[line], axis_dirs[line], sign * np.asarray(angles, dtype=float)[creases])
+    if emap.any():
+        idx = np.nonzero(emap)[0]
+        maps = np.stack([_edge_map(pattern, int(e_to[k]), int(e_from[k])) for k in idx])
+        m[idx] = maps @ m[idx]
+    return m
+
+
 def compose_poses(
     pattern: CreasePattern,
     angles: FloatArray,
@@ -134,7 +243,8 @@ def compose_poses(
     ----------
     pattern : CreasePattern
     angles : (m,) float, rad
-        Signed fold angle of every crease (ignored for creases not in the tree).
+        Signed fold angle of every crease (ignored for creases not in the tree). A seam's angle
+        is read at its crease ``a``.
     base : int, optional
         Fixed panel; default :func:`default_base_panel`.
     axis_points, axis_dirs : (m, 3) float, optional
@@ -152,27 +262,20 @@ def compose_poses(
         base = default_base_panel(pattern)
     if tree is None:
         tree = spanning_tree(pattern, base)
-    cp = pattern.crease_panels
     poses = np.empty((pattern.n_panels, 4, 4))
     poses[base] = np.eye(4)
-    for a, b, c in tree:
-        if axis_points is not None and axis_dirs is not None:
-            pt, d = axis_points[c], axis_dirs[c]
-        else:
-            pt, d = _hinge_axis(pattern, c)
-        # which side of the forward direction is the child on?
-        left = int(cp[c, 0]) == b
-        if not left and int(cp[c, 1]) != b:
-            # seam: child is on the far crease; use its own side on that crease
-            seam = next(s for s in pattern.seams if s.a == c)
-            left = int(cp[seam.b, 0]) == b
-            pa, da = _hinge_axis(pattern, seam.b)
-            rot = rotation_about_line(pa, da, angles[c] if left else -angles[c])
-            # bring child's seam edge onto the parent's: the seam-b edge maps onto seam-a edge
-            poses[b] = poses[a] @ _edge_map(pattern, seam.a, seam.b) @ rot
-            continue
-        rot = rotation_about_line(pt, d, angles[c] if left else -angles[c])
-        poses[b] = poses[a] @ rot
+    if not tree:
+        return poses
+    e = np.array(tree, dtype=np.int64).reshape(-1, 3)
+    rel = edge_transforms(pattern, e[:, 0], e[:, 1], e[:, 2], angles, axis_points=axis_points, axis_dirs=axis_dirs)
+    # depth of every child; parents precede children, so one pass suffices
+    depth = np.zeros(pattern.n_panels, dtype=np.int64)
+    for a, b, _ in tree:
+        depth[b] = depth[a] + 1
+    d_child = depth[e[:, 1]]
+    for level in range(1, int(d_child.max()) + 1):
+        sel = np.nonzero(d_child == level)[0]
+        poses[e[sel, 1]] = poses[e[sel, 0]] @ rel[sel]
     return poses
 
 
@@ -190,35 +293,35 @@ def _edge_map(pattern: CreasePattern, ca: int, cb: int) -> FloatArray:
     return t
 
 
-def closure_error(pattern: CreasePattern, angles: FloatArray, poses: FloatArray) -> float:
-    """Largest mismatch of poses across creases not in the tree (and seams).
+_EDGES: weakref.WeakKeyDictionary[CreasePattern, IntArray] = weakref.WeakKeyDictionary()
 
-    For every folding crease between panels A and B, the pose of B must equal A's pose times the
-    hinge rotation. Returns the largest absolute difference of the 4x4 entries (translation part
-    divided by the sheet size so the number is dimensionless).
+
+def _graph_edges(pattern: CreasePattern) -> IntArray:
+    """(E, 3) int: (panel, panel, crease) of every panel-graph edge (cached per pattern)."""
+    e = _EDGES.get(pattern)
+    if e is None:
+        g = pattern.panel_graph
+        e = np.array([(a, b, d["crease"]) for a, b, d in g.edges(data=True)], dtype=np.int64).reshape(-1, 3)
+        _EDGES[pattern] = e
+    return e
+
+
+def closure_error(pattern: CreasePattern, angles: FloatArray, poses: FloatArray) -> float:
+    """Largest mismatch of poses across every hinge of the panel graph (seams included).
+
+    For every folding or flat crease between panels A and B, the pose of B must equal A's pose
+    times the hinge transform (:func:`edge_transforms`). Returns the largest absolute difference
+    of the 4x4 entries, the translation part divided by the sheet size so the number is
+    dimensionless. Tree edges give 0 by construction; the others measure loop closure.
     """
-    cp = pattern.crease_panels
+    e = _graph_edges(pattern)
+    if len(e) == 0:
+        return 0.0
     ext = np.ptp(pattern.vertices, axis=0).max() or 1.0
-    worst = 0.0
-    g = pattern.panel_graph
-    for a, b, data in g.edges(data=True):
-        c = data["crease"]
-        if "seam" in data:
-            seam = next(s for s in pattern.seams if s.a == c)
-            pa_, pb_ = (a, b) if int(max(cp[c])) == a else (b, a)
-            left_b = int(cp[seam.b, 0]) == pb_
-            p0, d0 = _hinge_axis(pattern, seam.b)
-            rot = rotation_about_line(p0, d0, angles[c] if left_b else -angles[c])
-            expect = poses[pa_] @ _edge_map(pattern, seam.a, seam.b) @ rot
-            diff = expect - poses[pb_]
-        else:
-            p0, d0 = _hinge_axis(pattern, c)
-            left = int(cp[c, 0]) == b
-            rot = rotation_about_line(p0, d0, angles[c] if left else -angles[c])
-            diff = poses[a] @ rot - poses[b]
-        diff[:3, 3] /= ext
-        worst = max(worst, float(np.abs(diff).max()))
-    return worst
+    rel = edge_transforms(pattern, e[:, 0], e[:, 1], e[:, 2], angles)
+    diff = poses[e[:, 0]] @ rel - poses[e[:, 1]]
+    diff[:, :3, 3] /= ext
+    return float(np.abs(diff).max())
 
 
 @dataclass(frozen=True)
@@ -299,10 +402,11 @@ class FoldPath:
         return np.array([s.t for s in self.states])
 
     def at(self, t: float) -> FoldState:
-        """State at fold fraction ``t`` in [0, 1], linearly interpolating crease angles.
+        """State at fold fraction ``t`` in [0, 1].
 
-        The interpolated angles are re-composed into poses; use the kinematics solver's
-        ``refine`` to project onto the constraint manifold when exact closure matters.
+        For paths made by :func:`thickpanel.kinematics.fold_path` the state is solved exactly
+        (closure error below the tolerance) from the nearest sampled state; for hand-made paths
+        the crease angles are interpolated linearly and re-composed into poses.
         """
         if not (0.0 <= t <= 1.0):
             lo, hi = self.fractions[[0, -1]]
@@ -313,6 +417,12 @@ class FoldPath:
         if t >= ts[-1]:
             return self.states[-1]
         k = int(np.searchsorted(ts, t))
+        if ts[k] == t:
+            return self.states[k]
+        if self.meta.get("solver") == "kinematics":
+            from .kinematics import solve_state  # late import: kinematics builds on this module
+
+            return solve_state(self.states[0].pattern, t, path=self)
         s0, s1 = self.states[k - 1], self.states[k]
         w = (t - s0.t) / (s1.t - s0.t)
         ang = (1 - w) * s0.angles + w * s1.angles
