@@ -92,6 +92,8 @@ def test_immutable_arrays_and_replace():
         cp.vertices[0, 0] = 5.0
     with pytest.raises(ValueError):
         cp.creases[0, 0] = 1
+    with pytest.raises(AttributeError, match="immutable"):
+        cp.name = "other"
     moved = cp.replace(vertices=np.asarray(cp.vertices) * 2.0, name="scaled")
     assert moved.name == "scaled" and cp.name == ""
     assert sum(p.area for p in moved.panels) == pytest.approx(4 * 400.0)

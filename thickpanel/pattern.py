@@ -222,8 +222,15 @@ class CreasePattern:
         self._seams = tuple(seams)
         self.name = str(name)
         self.tol = tol
+        self._frozen = True
         if validate:
             self.assert_valid()
+
+    def __setattr__(self, key: str, value: Any) -> None:
+        # derived data are cached by functools.cached_property, which writes __dict__ directly
+        if getattr(self, "_frozen", False):
+            raise AttributeError(f"CreasePattern is immutable; use pattern.replace({key}=...) for a changed copy")
+        object.__setattr__(self, key, value)
 
     # ------------------------------------------------------------------ basic data
     @property
