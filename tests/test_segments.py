@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from thickpanel import CreasePattern, PatternError, Tolerances
@@ -153,3 +153,54 @@ def test_line_arrangement_grid(xs, ys):
     assert cp.n_panels == (len(xs) + 1) * (len(ys) + 1)
     assert _euler(cp) == 2
     assert sum(p.area for p in cp.panels) == pytest.approx(w * h)
+
+
+def _point_on_border(u: float, w: float) -> list[float]:
+    """Point at perimeter fraction u of the w x w square, counter-clockwise from (0, 0)."""
+    s = (u % 1.0) * 4.0 * w
+    if s < w:
+        return [s, 0.0]
+    if s < 2 * w:
+        return [w, s - w]
+    if s < 3 * w:
+        return [3 * w - s, w]
+    return [0.0, 4 * w - s]
+
+
+def _proper_cross(p1, p2, q1, q2) -> bool:
+    def orient(a, b, c):
+        return (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+
+    return orient(p1, p2, q1) * orient(p1, p2, q2) < 0 and orient(q1, q2, p1) * orient(q1, q2, p2) < 0
+
+
+@settings(max_examples=30, deadline=None)
+@given(st.lists(st.tuples(st.floats(0.01, 0.24), st.floats(0.26, 0.99)), min_size=1, max_size=7))
+def test_random_chords_region_count(chords):
+    # k chords of a convex sheet with I crossing points in general position cut it into 1 + k + I
+    # regions (each chord adds one region plus one per chord it crosses; follows from Euler's formula).
+    w = 100.0
+    ends = [(_point_on_border(u, w), _point_on_border(v, w)) for u, v in chords]
+    pts = [p for e in ends for p in e]
+    # general position: distinct end points, crossings not too close to each other or to ends
+    assume(min(np.linalg.norm(np.subtract(a, b)) for i, a in enumerate(pts) for b in pts[i + 1 :]) > 1.0)
+    crossings = []
+    for i in range(len(ends)):
+        for j in range(i + 1, len(ends)):
+            (p1, p2), (q1, q2) = ends[i], ends[j]
+            if _proper_cross(p1, p2, q1, q2):
+                r = np.subtract(p2, p1)
+                s = np.subtract(q2, q1)
+                qp = np.subtract(q1, p1)
+                t = (qp[0] * s[1] - qp[1] * s[0]) / (r[0] * s[1] - r[1] * s[0])
+                crossings.append(np.add(p1, t * r))
+    cands = crossings + [np.asarray(p) for p in pts]
+    assume(all(np.linalg.norm(a - b) > 0.5 for i, a in enumerate(cands) for b in cands[i + 1 :]))
+    # border split by the chord ends: draw it as 4 full sides; the importer splits at T-junctions
+    segs = [[[0, 0], [w, 0]], [[w, 0], [w, w]], [[w, w], [0, w]], [[0, w], [0, 0]]]
+    segs += [[list(a), list(b)] for a, b in ends]
+    kinds = ["border"] * 4 + ["valley"] * len(ends)
+    cp = CreasePattern.from_segments(segs, kinds)
+    assert cp.n_panels == 1 + len(ends) + len(crossings)
+    assert _euler(cp) == 2
+    assert sum(p.area for p in cp.panels) == pytest.approx(w * w)
