@@ -169,6 +169,32 @@ def test_malformed_arrays_raise_pattern_error():
         CreasePattern([["a", "b"]], [], [])
 
 
+@pytest.mark.parametrize(
+    "creases, kinds, match",
+    [
+        ([[0, 1], [1, 2], [2, 3], [3, float("nan")]], ["border"] * 4, r"C003 has vertex index nan; .* 0\.\.3"),
+        ([[0, 1], [1, 2], [2, 3], [3, 1e30]], ["border"] * 4, r"C003 has vertex index 1e\+30"),
+        (SQ_E, "bbbb", "not the string 'bbbb'"),
+        (SQ_E, None, "got None"),
+    ],
+)
+def test_bad_arguments_never_leak_numpy_errors(creases, kinds, match):
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # a numpy RuntimeWarning would fail the test
+        with pytest.raises(PatternError, match=match):
+            CreasePattern(SQ, creases, kinds)
+
+
+def test_lookups_out_of_range_name_the_id():
+    cp = CreasePattern(SQ, SQ_E, ["border"] * 4)
+    with pytest.raises(PatternError, match="vertex V009 does not exist; valid vertices are V000..V003"):
+        cp.vertex_creases(9)
+    with pytest.raises(PatternError, match="panel P003 does not exist"):
+        cp.panel_polygon(3)
+
+
 def test_invalid_pattern_queries_raise_pattern_error():
     cp = CreasePattern(SQ, SQ_E + [[2, 9]], ["border"] * 4 + ["valley"], validate=False)
     with pytest.raises(PatternError, match="C004"):

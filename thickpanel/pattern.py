@@ -193,8 +193,20 @@ class CreasePattern:
             raise PatternError(f"vertices must be an (n, 2) array of numbers in mm: {exc}") from None
         try:
             c_raw = np.asarray(creases)
+            if c_raw.size and np.issubdtype(c_raw.dtype, np.floating):
+                flat_c = c_raw.reshape(-1)
+                bad = ~np.isfinite(flat_c) | (np.abs(flat_c) > 2**62) | (flat_c != np.round(flat_c))
+                if bad.any():
+                    q = int(np.nonzero(bad)[0][0])
+                    row = q // 2 if c_raw.ndim == 2 and c_raw.shape[1] == 2 else q
+                    raise PatternError(
+                        f"crease {cid(row)} has vertex index {float(flat_c[q])!r}; crease vertex indices must be "
+                        f"whole numbers in 0..{len(v) - 1}"
+                    )
             c = c_raw.astype(np.int64)
         except (TypeError, ValueError) as exc:
+            if isinstance(exc, PatternError):
+                raise
             raise PatternError(f"creases must be an (m, 2) array of vertex indices: {exc}") from None
         if v.ndim != 2 or v.shape[1] != 2:
             v = v.reshape(-1, 2) if v.size == 0 else v
@@ -206,7 +218,12 @@ class CreasePattern:
             raise PatternError(f"creases must have shape (m, 2); got {np.shape(creases)}")
         if c_raw.size and np.issubdtype(c_raw.dtype, np.floating) and not np.all(c_raw == c):
             raise PatternError("crease vertex indices must be whole numbers")
-        kinds_t = tuple(str(k) for k in kinds)
+        if isinstance(kinds, str):
+            raise PatternError(f"kinds must be a sequence of kind names, one per crease, not the string {kinds!r}")
+        try:
+            kinds_t = tuple(str(k) for k in kinds)
+        except TypeError:
+            raise PatternError(f"kinds must be a sequence of kind names ({', '.join(KINDS)}); got {kinds!r}") from None
         if len(kinds_t) != len(c):
             raise PatternError(f"kinds has {len(kinds_t)} entries for {len(c)} creases")
         if target_angles is None:
@@ -384,6 +401,8 @@ class CreasePattern:
 
     def vertex_creases(self, v: int) -> tuple[int, ...]:
         """Creases at vertex ``v`` in counter-clockwise order."""
+        if not 0 <= int(v) < self.n_vertices:
+            raise PatternError(f"vertex {vid(v)} does not exist; valid vertices are V000..{vid(self.n_vertices - 1)}")
         offsets, creases, _ = self.star
         return tuple(int(x) for x in creases[offsets[v] : offsets[v + 1]])
 
@@ -476,6 +495,8 @@ class CreasePattern:
 
     def panel_polygon(self, p: int) -> FloatArray:
         """(k, 2) float, mm: the counter-clockwise polygon of panel ``p``."""
+        if not 0 <= int(p) < self.n_panels:
+            raise PatternError(f"panel {pid(p)} does not exist; valid panels are P000..{pid(self.n_panels - 1)}")
         return self._vertices[list(self.panels[p].loop)]
 
     @cached_property

@@ -41,7 +41,10 @@ def structural_findings(cp: CreasePattern) -> list[Finding]:
     for i in bad_v[:20]:
         out.append(
             Finding(
-                "nonfinite", (vid(i),), None, f"vertex {vid(i)} has a non-finite coordinate {tuple(v[i])}"
+                "nonfinite",
+                (vid(i),),
+                None,
+                f"vertex {vid(i)} has a non-finite coordinate {tuple(float(x) for x in v[i])}",
             )
         )
     n = len(v)
