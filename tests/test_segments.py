@@ -124,6 +124,7 @@ def test_zero_length_segments_dropped_and_targets_inherited():
         (BORDER, ["border"] * 3, "kinds has 3 entries for 4 segments"),
         (BORDER, ["border", "valey", "border", "border"], r"segment 1 has unknown kind 'valey'"),
         ([["a", "b"]], ["border"], "numbers in mm"),
+        (BORDER, "bbbb", "not the string 'bbbb'"),
     ],
 )
 def test_bad_input(segs, kinds, match):

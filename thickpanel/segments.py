@@ -209,7 +209,12 @@ def pattern_from_segments(
     """
     s = _as_segments(segments)
     k = len(s)
-    kinds_t = tuple(str(x) for x in kinds)
+    if isinstance(kinds, str):
+        raise PatternError(f"kinds must be a sequence of kind names, one per segment, not the string {kinds!r}")
+    try:
+        kinds_t = tuple(str(x) for x in kinds)
+    except TypeError:
+        raise PatternError(f"kinds must be a sequence of kind names ({', '.join(KINDS)}); got {kinds!r}") from None
     if len(kinds_t) != k:
         raise PatternError(f"kinds has {len(kinds_t)} entries for {k} segments")
     for q, kind in enumerate(kinds_t):
