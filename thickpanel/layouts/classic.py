@@ -181,10 +181,14 @@ def square_twist(
     assignment : {"standard", "two-two"}
         ``standard``: the central square folds as valleys and each pleat is one mountain and one
         valley; all four corners are on the same rigid branch (this assignment is flat-foldable
-        but not rigidly foldable, Hull 2020 *Origametry*). ``two-two``: opposite corners take the
-        other choice of the odd crease allowed by big-little-big, so two corners lie on each of
-        the two rigid branches of the degree-4 vertex; the fold-angle multipliers then multiply to
-        one around the square and the cell folds rigidly (Tachi 2009; Evans et al. 2015).
+        but not rigidly foldable, Hull 2020 *Origametry*). ``two-two``: corners 0 and 2 keep the
+        standard choice (the first pleat is the odd crease), corners 1 and 3 take the other choice
+        big-little-big allows (the side to the previous corner is the odd crease), so two corners
+        lie on each of the two rigid branches of the degree-4 vertex. The tangent-of-half-angle
+        multipliers between consecutive sides are cot(t/2) on one branch and -tan(t/2) on the
+        other, so they multiply to one around the square and the cell folds rigidly with one
+        degree of freedom (Tachi 2009; Evans et al. 2015). Sides: valley, mountain, mountain,
+        valley.
     sheet : float, mm, optional
         Side of the square sheet, centred on the twist; default ``2 side``. Must exceed
         ``side (cos t + sin t)`` so that the pleats reach the border.
