@@ -142,3 +142,42 @@ def test_accordion():
 def test_parameter_errors_echo_value_and_range(fn, kwargs, match):
     with pytest.raises(PatternError, match=match):
         fn(**kwargs)
+
+
+def _rot(axis, a):
+    # rotation about an in-plane unit axis (Rodrigues' formula)
+    x, y = axis
+    k = np.array([[0.0, 0.0, y], [0.0, 0.0, -x], [-y, x, 0.0]])
+    return np.eye(3) + math.sin(a) * k + (1 - math.cos(a)) * k @ k
+
+
+def test_square_twist_two_two_closes_rigidly():
+    # The fold state predicted by the degree-4 rigid-branch relations (Huffman 1976; restated in
+    # Evans et al. 2015 and /shared REFERENCES sec. 2: branch A rho3 = rho1, rho4 = -rho2; branch B
+    # rho4 = rho2, rho3 = -rho1; tangent-of-half-angle multipliers -tan(t/2) and cot(t/2)) must
+    # satisfy loop closure R(l1, rho1) ... R(ln, rhon) = I at every corner (Tachi 2009, "Simulation
+    # of rigid origami"; Belcastro & Hull 2002) and carry the layout's mountain/valley signs.
+    twist = 30.0
+    cp = square_twist(20.0, twist, assignment="two-two")
+    sign = np.array([1.0 if k == "valley" else -1.0 for k in cp.kinds[:12]])
+    t = math.tan(math.radians(twist) / 2)
+    for drive_deg in (5.0, 45.0, 90.0, 150.0):
+        h0 = math.tan(math.radians(drive_deg) / 2)
+        sides = [h0, -h0 / t, -h0, h0 / t]  # tan(side/2); corner 1, 3 branch A, corner 0, 2 branch B
+        side = [2 * math.atan(x) for x in sides]
+        rho = np.zeros(12)
+        rho[:4] = side
+        for k in range(4):
+            e_next, e_prev = side[k], side[(k - 1) % 4]
+            if k % 2 == 0:  # branch B: first pleat = -e_next, second pleat = e_prev
+                rho[4 + 2 * k], rho[5 + 2 * k] = -e_next, e_prev
+            else:  # branch A: first pleat = e_next, second pleat = -e_prev
+                rho[4 + 2 * k], rho[5 + 2 * k] = e_next, -e_prev
+        assert np.all(np.sign(rho) == sign)
+        for v in range(4):
+            m = np.eye(3)
+            for c in cp.vertex_creases(v):
+                a, b = cp.creases[c]
+                d = cp.vertices[b if a == v else a] - cp.vertices[v]
+                m = m @ _rot(d / np.linalg.norm(d), rho[c])
+            assert np.abs(m - np.eye(3)).max() < 1e-12, (drive_deg, v)
