@@ -553,11 +553,18 @@ class CreasePattern:
         return nx.freeze(g)
 
     # ------------------------------------------------------------------ validation
-    def problems(self) -> list[Finding]:
-        """Every validation finding, structural ones first (empty for a valid pattern)."""
+    @cached_property
+    def _problems(self) -> tuple[Finding, ...]:
         from .pattern_checks import find_problems
 
-        return find_problems(self)
+        return tuple(find_problems(self))
+
+    def problems(self) -> list[Finding]:
+        """Every validation finding, structural ones first (empty for a valid pattern).
+
+        Computed once per pattern (the object is immutable); each call returns a new list.
+        """
+        return list(self._problems)
 
     def is_valid(self) -> bool:
         """True when :meth:`problems` is empty."""
