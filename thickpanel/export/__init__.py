@@ -1,0 +1,247 @@
+"""Manufacturing exports of a part set: a registry of format names, one writer.
+
+Formats (:func:`available_formats`):
+
+- ``step``: named STEP assembly in the requested fold state (``assembly.step``);
+- ``step-parts``: one STEP per part in its flat machining pose (``step/P017.step``);
+- ``stl``: one STL per part, flat machining pose (``stl/P017.stl``), and the whole assembly in
+  the fold state (``assembly.stl``);
+- ``3mf``: build plate of the flat array, one object per part (``plate.3mf``);
+- ``dxf``: cut profiles per part (``dxf/P017.dxf``);
+- ``bom``: ``bom.csv`` and ``bom.json``;
+- ``metrics``: ``metrics.json``.
+
+Every format function returns ``{relative name: bytes}``; :func:`export_parts` computes them all
+first and only then writes, each file through a temp file and a rename, removing what it wrote if
+a later write fails. Heavy modules are imported lazily so ``thickpanel.export.drawing`` stays light.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from ..errors import ExportError, ThickpanelError
+
+if TYPE_CHECKING:
+    from ..poses import FoldState
+    from ..solids import PartSet
+
+__all__ = ["ExportOptions", "available_formats", "register_format", "export_parts", "render"]
+
+
+@dataclass(frozen=True)
+class ExportOptions:
+    """Settings shared by the format functions.
+
+    Attributes
+    ----------
+    state : FoldState or None
+        Fold state of the assembly files (None: the part set's own state, else flat).
+    clearance : object or None
+        A clearance report (``.min_clearance`` mm) for ``metrics.json``.
+    stl_linear_mm : float
+        Chordal mesh deflection, mm.
+    stl_angular_deg : float
+        Angular mesh deflection, degrees.
+    step_schema : str
+        ``AP214`` or ``AP242``.
+    name : str
+        Name of the assembly (STEP top label, 3MF title).
+    """
+
+    state: Any = None
+    clearance: Any = None
+    stl_linear_mm: float = 0.1
+    stl_angular_deg: float = 28.6
+    step_schema: str = "AP214"
+    name: str = "array"
+
+
+FormatFn = Callable[["PartSet", ExportOptions], dict[str, bytes]]
+
+
+def _state(ps: PartSet, opt: ExportOptions) -> Any:
+    return opt.state if opt.state is not None else ps.state
+
+
+def _step(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .step import step_bytes
+
+    poses = ps.poses(_state(ps, opt))
+    items = [(p.name, p.pieces, poses[p.panel]) for p in ps.parts]
+    return {"assembly.step": step_bytes(items, name=opt.name, schema=opt.step_schema)}
+
+
+def _step_parts(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .step import step_bytes
+
+    return {f"step/{p.name}.step": step_bytes([(p.name, p.pieces, p.flat_location)],
+                                              name=p.name, schema=opt.step_schema)
+            for p in ps.parts}
+
+
+def _meshes(ps: PartSet, opt: ExportOptions) -> list:
+    from .mesh import mesh_parts
+
+    if not (opt.stl_linear_mm > 0 and 0 < opt.stl_angular_deg < 180):
+        raise ExportError(
+            f"mesh tolerance stl_linear_mm = {opt.stl_linear_mm!r}, stl_angular_deg = "
+            f"{opt.stl_angular_deg!r} out of range; allowed: linear > 0 mm, 0 < angular < 180 deg"
+        )
+    return mesh_parts([p.frame_shape for p in ps.parts], linear=opt.stl_linear_mm,
+                      angular=math.radians(opt.stl_angular_deg), tol=ps.tol)
+
+
+def _stl(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .mesh import stl_bytes, transform
+
+    meshes = _meshes(ps, opt)
+    poses = ps.poses(_state(ps, opt))
+    out = {f"stl/{p.name}.stl": stl_bytes([transform(m, p.flat_location)], name=p.name)
+           for p, m in zip(ps.parts, meshes, strict=True)}
+    out["assembly.stl"] = stl_bytes(
+        [transform(m, poses[p.panel]) for p, m in zip(ps.parts, meshes, strict=True)],
+        name=opt.name)
+    return out
+
+
+def _3mf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .mesh import threemf_bytes
+
+    meshes = _meshes(ps, opt)
+    zmin = min(float(v[:, 2].min()) for v, f in meshes if len(v))
+    shifted = [(p.name, (v - [0.0, 0.0, zmin], f)) for p, (v, f) in zip(ps.parts, meshes,
+                                                                         strict=True)]
+    return {"plate.3mf": threemf_bytes(shifted, title=opt.name)}
+
+
+def _dxf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .profiles import profile_dxf_bytes
+
+    out = {}
+    for p in ps.parts:
+        data = profile_dxf_bytes(p)
+        if data is not None:
+            out[f"dxf/{p.name}.dxf"] = data
+    return out
+
+
+def _bom(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .bom import bom_csv_bytes, bom_json_bytes
+
+    return {"bom.csv": bom_csv_bytes(ps), "bom.json": bom_json_bytes(ps)}
+
+
+def _metrics(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .metrics import metrics_json_bytes
+
+    return {"metrics.json": metrics_json_bytes(ps, _state(ps, opt), opt.clearance)}
+
+
+_FORMATS: dict[str, FormatFn] = {
+    "step": _step,
+    "step-parts": _step_parts,
+    "stl": _stl,
+    "3mf": _3mf,
+    "dxf": _dxf,
+    "bom": _bom,
+    "metrics": _metrics,
+}
+
+
+def available_formats() -> list[str]:
+    """Sorted names of the registered export formats."""
+    return sorted(_FORMATS)
+
+
+def register_format(name: str, fn: FormatFn) -> None:
+    """Register ``fn(partset, options) -> {relative name: bytes}`` under a new ``name``."""
+    if name in _FORMATS:
+        raise ExportError(f"export format {name!r} is already registered")
+    _FORMATS[name] = fn
+
+
+def _names(formats: str | Iterable[str]) -> list[str]:
+    if isinstance(formats, str):
+        formats = available_formats() if formats == "all" else [formats]
+    names = list(dict.fromkeys(formats))
+    bad = [f for f in names if f not in _FORMATS]
+    if bad:
+        raise ExportError(
+            f"unknown export format {', '.join(map(repr, bad))}; available: "
+            f"{', '.join(available_formats())} (or 'all')"
+        )
+    return names
+
+
+def render(partset: PartSet, formats: str | Iterable[str], options: ExportOptions) -> dict[str,
+                                                                                          bytes]:
+    """All files of ``formats`` as ``{relative name: bytes}``, nothing written."""
+    files: dict[str, bytes] = {}
+    for name in _names(formats):
+        try:
+            files.update(_FORMATS[name](partset, options))
+        except ThickpanelError:
+            raise
+        except Exception as exc:
+            raise ExportError(f"export format {name!r} failed: {exc}") from exc
+    return files
+
+
+def export_parts(
+    partset: PartSet,
+    out_dir: str | os.PathLike[str],
+    formats: str | Iterable[str] = "all",
+    *,
+    state: FoldState | None = None,
+    clearance: Any = None,
+    stl_linear_mm: float = 0.1,
+    stl_angular_deg: float = 28.6,
+    step_schema: str = "AP214",
+    name: str | None = None,
+) -> list[Path]:
+    """Write the chosen formats of a part set under ``out_dir``; return the written paths.
+
+    Parameters
+    ----------
+    partset : PartSet
+    out_dir : path-like
+        Created when missing; an unwritable folder raises :class:`ExportError`.
+    formats : str or iterable of str
+        Format names (see the module docstring) or ``"all"``.
+    state : FoldState, optional
+        Fold state of ``assembly.step`` / ``assembly.stl`` / the stowed envelope.
+    clearance : ClearanceReport, optional
+        Its ``min_clearance`` goes into ``metrics.json``.
+    stl_linear_mm, stl_angular_deg : float
+        Mesh tolerance of STL and 3MF.
+    step_schema : str
+        ``AP214`` (default) or ``AP242``.
+    name : str, optional
+        Assembly name; defaults to the pattern name or ``array``.
+
+    Returns
+    -------
+    list of Path
+        Sorted by relative name. Nothing is left behind when an error is raised.
+    """
+    from .writer import write_all
+
+    root = Path(out_dir)
+    if root.exists() and not root.is_dir():
+        raise ExportError(f"output folder {root} exists and is not a folder")
+    try:
+        root.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise ExportError(f"cannot create output folder {root}: {exc}") from None
+    if not os.access(root, os.W_OK | os.X_OK):
+        raise ExportError(f"output folder {root} is not writable")
+    nm = name or getattr(partset.plan.pattern, "name", "") or "array"
+    opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm)
+    files = render(partset, formats, opt)
+    return write_all(root, files)

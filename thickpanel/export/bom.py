@@ -1,0 +1,72 @@
+"""Bill of materials (CSV and JSON) of a part set.
+
+Columns: part id, kind, material, thickness (mm), area (mm^2), volume (mm^3), mass (g), hinge
+count, pin diameters (mm), and for pins their length and fit.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+from typing import Any
+
+from hinges.materials import get_material
+
+from ..solids import PartSet
+
+__all__ = ["CAUTION", "bom_rows", "bom_csv_bytes", "bom_json_bytes"]
+
+CAUTION = (
+    "CAUTION: generated geometry for design studies. Parts for machining, printing or flight "
+    "hardware need checking against the applicable codes and standards (fits, materials, "
+    "fasteners, pinch points, stored energy) and review by a qualified engineer before use."
+)
+
+COLUMNS = ("part", "kind", "material", "thickness_mm", "area_mm2", "volume_mm3", "mass_g",
+           "hinge_count", "pin_diameters_mm", "length_mm", "fit")
+
+
+def bom_rows(partset: PartSet) -> list[dict[str, Any]]:
+    """One dict per part (rounded to 1e-4 of the unit, so the files are stable)."""
+    rows = []
+    for p in partset.parts:
+        rows.append({
+            "part": p.name,
+            "kind": p.kind,
+            "material": p.material,
+            "material_name": get_material(p.material, who=p.name).name,
+            "thickness_mm": round(p.thickness, 4),
+            "area_mm2": round(p.area, 4),
+            "volume_mm3": round(p.volume, 4),
+            "mass_g": round(p.mass, 4),
+            "hinge_count": p.hinge_count,
+            "pin_diameters_mm": " ".join(f"{d:g}" for d in p.pins),
+            "length_mm": round(float(p.attrs.get("length", 0.0)), 4),
+            "fit": str(p.attrs.get("fit", "")),
+        })
+    return rows
+
+
+def bom_csv_bytes(partset: PartSet) -> bytes:
+    """CSV with a header row; the caution is the first line, as a ``#`` comment."""
+    buf = io.StringIO()
+    buf.write(f"# {CAUTION}\n")
+    w = csv.DictWriter(buf, fieldnames=COLUMNS, extrasaction="ignore", lineterminator="\n")
+    w.writeheader()
+    for r in bom_rows(partset):
+        w.writerow(r)
+    return buf.getvalue().encode("utf-8")
+
+
+def bom_json_bytes(partset: PartSet) -> bytes:
+    """JSON: caution, units, part rows and totals per kind."""
+    rows = bom_rows(partset)
+    totals: dict[str, dict[str, float]] = {}
+    for r in rows:
+        t = totals.setdefault(r["kind"], {"count": 0, "mass_g": 0.0})
+        t["count"] += 1
+        t["mass_g"] = round(t["mass_g"] + r["mass_g"], 4)
+    doc = {"caution": CAUTION, "units": {"length": "mm", "mass": "g"},
+           "hinge_style": partset.hinge_style, "parts": rows, "totals": totals}
+    return (json.dumps(doc, indent=1, sort_keys=True) + "\n").encode("utf-8")

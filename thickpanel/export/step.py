@@ -1,0 +1,117 @@
+"""STEP export through a named XCAF document (ISO 10303-21 file, AP214 or AP242 schema, mm).
+
+The assembly has one top label named after the array and one part + component per panel, pin,
+flexure and tape (``P017``, ``PIN-C042``), each component placed by the requested fold state.
+Per-part files hold a single named part in its flat machining pose. Pcurves are not written
+(``write.surfacecurve.mode = 0``), which halves the file and the time and is accepted by the
+readers we check with (OCP's XCAF reader and gmsh).
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+from OCP.IFSelect import IFSelect_RetDone
+from OCP.Interface import Interface_Static
+from OCP.Message import Message, Message_Gravity
+from OCP.STEPCAFControl import STEPCAFControl_Writer
+from OCP.STEPControl import STEPControl_AsIs, STEPControl_Controller
+from OCP.TCollection import TCollection_ExtendedString
+from OCP.TDataStd import TDataStd_Name
+from OCP.TDocStd import TDocStd_Document
+from OCP.TopoDS import TopoDS_Shape
+from OCP.XCAFDoc import XCAFDoc_DocumentTool
+
+from .. import occ
+from ..errors import ExportError
+from ..typing import FloatArray
+
+__all__ = ["SCHEMAS", "step_bytes"]
+
+#: Accepted schema names -> the OCCT ``write.step.schema`` value.
+SCHEMAS = {"AP214": "AP214IS", "AP242": "AP242DIS", "AP203": "AP203"}
+
+
+def _quiet() -> None:
+    """Keep OCCT's transfer statistics off stdout (only failures are printed)."""
+    for p in Message.DefaultMessenger_s().Printers():
+        p.SetTraceLevel(Message_Gravity.Message_Fail)
+
+
+def _setup(schema: str) -> None:
+    if schema not in SCHEMAS:
+        raise ExportError(f"STEP schema {schema!r} is not supported; choose one of "
+                          f"{', '.join(sorted(SCHEMAS))}")
+    STEPControl_Controller.Init_s()  # before any Interface_Static write setting (else ignored)
+    _quiet()
+    Interface_Static.SetCVal_s("write.step.schema", SCHEMAS[schema])
+    Interface_Static.SetCVal_s("write.step.unit", "MM")
+    Interface_Static.SetIVal_s("write.surfacecurve.mode", 0)
+    Interface_Static.SetIVal_s("write.precision.mode", 0)
+
+
+def step_bytes(
+    items: Sequence[tuple[str, Sequence[tuple[Any, TopoDS_Shape, FloatArray]], FloatArray | None]],
+    *,
+    name: str = "array",
+    schema: str = "AP214",
+) -> bytes:
+    """A STEP file with one named part per item, its solids written once per shared prototype.
+
+    Parameters
+    ----------
+    items : sequence of (name, pieces, pose)
+        ``pieces`` as in :attr:`thickpanel.solids.Part.pieces`: (key, prototype shape, (4, 4)
+        placement in the part's frame); pieces with equal keys share one prototype in the file.
+        ``pose`` (4, 4) places the part's component in the assembly (None = identity).
+    name : str
+        Name of the top assembly label.
+    schema : str
+        ``AP214`` (default), ``AP242`` or ``AP203``.
+
+    Returns
+    -------
+    bytes
+        Structure: top assembly ``name`` -> component per part (named like the part) -> the
+        part's sub-assembly (same name) -> one component per solid.
+    """
+    _setup(schema)
+    doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
+    tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
+    top = tool.NewShape()
+    TDataStd_Name.Set_s(top, TCollection_ExtendedString(name))
+    protos: dict[Any, Any] = {}
+    eye = np.eye(4)
+    for part_name, pieces, pose in items:
+        asm = tool.NewShape()
+        TDataStd_Name.Set_s(asm, TCollection_ExtendedString(part_name))
+        for j, (key, proto, m) in enumerate(pieces):
+            lab = protos.get(key)
+            if lab is None:
+                lab = tool.AddShape(proto, False)
+                label = f"{part_name}-{j}" if key[0] == "unique" else f"{key[0]}-{len(protos)}"
+                TDataStd_Name.Set_s(lab, TCollection_ExtendedString(label))
+                protos[key] = lab
+            tool.AddComponent(asm, lab, occ.location(m))
+        comp = tool.AddComponent(top, asm, occ.location(eye if pose is None else pose))
+        TDataStd_Name.Set_s(comp, TCollection_ExtendedString(part_name))
+    tool.UpdateAssemblies()
+    writer = STEPCAFControl_Writer()
+    writer.SetNameMode(True)
+    writer.SetColorMode(False)
+    writer.SetLayerMode(False)
+    if not writer.Transfer(doc, STEPControl_AsIs):
+        raise ExportError(f"STEP transfer of {name!r} failed")
+    fd, tmp = tempfile.mkstemp(suffix=".step")
+    os.close(fd)
+    try:
+        if writer.Write(tmp) != IFSelect_RetDone:
+            raise ExportError(f"STEP writer failed for {name!r}")
+        return Path(tmp).read_bytes()
+    finally:
+        os.unlink(tmp)

@@ -1,0 +1,530 @@
+"""Hinge-ready panel solids from a :class:`~thickpanel.thickness.plan.ThickPlan`.
+
+Each slab becomes a prism of its polygon (with the notches its hinge style asks for inserted into
+the outline, so they cost no boolean), trimmed by its cut planes, recesses and holes in *one*
+multi-tool cut, plus its standoffs and hinge barrels as separate solids that only touch the panel
+(the part is a compound of touching solids, so its volume is the sum of theirs). Barrels and pins
+of equal size share one ``TShape`` placed by locations. Every solid is checked with
+``BRepCheck_Analyzer`` before it leaves this module (shared barrels once per size); an invalid one
+raises :class:`~thickpanel.errors.GeometryError` naming the part.
+
+Frames: a part's ``frame_shape`` lies in the flat sheet frame (mm); ``shape`` is placed by the
+fold state given to :func:`build_parts` (the flat sheet when none); ``flat_location`` moves the
+part to its machining pose (bounding box corner at the origin, lying flat).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from functools import cached_property
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from hinges import get_hinge_style
+from hinges.base import Box, ExtraPart, HingeContext, HingeDesign, HingeFrame, HingeStyle, SideFeatures
+from hinges.materials import get_material
+
+from . import occ
+from .errors import GeometryError, HingeError
+from .geometry2d import polygon_area
+from .pattern import cid, pid
+from .tolerances import DEFAULT_TOL, Tolerances
+from .typing import FloatArray
+
+if TYPE_CHECKING:
+    from OCP.TopoDS import TopoDS_Shape
+
+    from .poses import FoldState
+    from .thickness.plan import Slab, ThickPlan
+
+__all__ = ["Part", "PartSet", "build_parts", "DEFAULT_MATERIAL"]
+
+#: Material of slabs that name none (common practice for machined panels).
+DEFAULT_MATERIAL = "al-6061-t6"
+
+
+@dataclass
+class Part:
+    """One manufactured part.
+
+    Attributes
+    ----------
+    name : str
+        ``P017`` (panel), ``PIN-C042``, ``FLEX-C042``, ``TAPE-C042``.
+    kind : str
+        ``panel``, ``pin``, ``flexure`` or ``tape``.
+    shape : TopoDS_Shape
+        Placed in the fold state the part set was built for.
+    frame_shape : TopoDS_Shape
+        The same part in the flat sheet frame.
+    material : str
+        Key of :data:`hinges.materials.MATERIALS`.
+    volume : float, mm^3
+    panel : int
+        Panel whose pose the part follows.
+    thickness : float, mm
+    area : float, mm^2
+        Outline area (panels, tapes) or 0.
+    outline : (k, 2) float or None, mm
+        Cut profile in the flat sheet frame (panels, tapes, flexure webs).
+    holes : list of (x, y, diameter), mm
+    bevels : list of (layer, (2, 2) float), mm
+        Lines where cut planes meet the top (``BEVEL``) or bottom (``BEVEL-BOTTOM``) face.
+    hinge_count : int
+    pins : tuple of float, mm
+        Pin diameters of the part's hinges (panels) or its own diameter (pins).
+    attrs : dict
+    pieces : list of (key, prototype, (4, 4) matrix)
+        The solids of the part: prototype shapes shared between parts (equal keys) and their
+        placement in the flat sheet frame. Exporters write each prototype once.
+    """
+
+    name: str
+    kind: str
+    shape: TopoDS_Shape
+    frame_shape: TopoDS_Shape
+    material: str
+    volume: float
+    panel: int
+    thickness: float = 0.0
+    area: float = 0.0
+    outline: FloatArray | None = None
+    holes: list[tuple[float, float, float]] = field(default_factory=list)
+    bevels: list[tuple[str, FloatArray]] = field(default_factory=list)
+    hinge_count: int = 0
+    pins: tuple[float, ...] = ()
+    attrs: dict[str, Any] = field(default_factory=dict)
+    pieces: list[tuple[tuple, TopoDS_Shape, FloatArray]] = field(default_factory=list)
+
+    @property
+    def mass(self) -> float:
+        """Mass in g (volume mm^3 x density g/cm^3 / 1000)."""
+        return self.volume * get_material(self.material, who=self.name).density / 1000.0
+
+    @cached_property
+    def flat_location(self) -> FloatArray:
+        """(4, 4) float: flat sheet frame -> machining pose (bounding-box corner at the origin)."""
+        lo = occ.bbox(self.frame_shape)[0]
+        m = np.eye(4)
+        m[:3, 3] = -lo
+        return m
+
+
+@dataclass
+class PartSet:
+    """The parts of one array and what they were built from."""
+
+    parts: list[Part]
+    plan: ThickPlan
+    hinge_style: str
+    designs: tuple[HingeDesign, ...]
+    state: FoldState | None = None
+    tol: Tolerances = DEFAULT_TOL
+
+    def poses(self, state: FoldState | None) -> FloatArray:
+        """(P, 4, 4) poses of the panels for ``state`` (identity for the flat sheet)."""
+        if state is None:
+            return np.tile(np.eye(4), (self.plan.pattern.n_panels, 1, 1))
+        return self.plan.poses(state)
+
+    def placed(self, state: FoldState | None = None) -> list[TopoDS_Shape]:
+        """Every part's shape placed for ``state`` (default: the state it was built for)."""
+        if state is None:
+            return [p.shape for p in self.parts]
+        poses = self.poses(state)
+        return [occ.moved(p.frame_shape, poses[p.panel]) for p in self.parts]
+
+    def __getitem__(self, name: str) -> Part:
+        for p in self.parts:
+            if p.name == name:
+                return p
+        raise GeometryError(f"no part named {name!r} in this part set ({len(self.parts)} parts)")
+
+
+class _Cache:
+    """Shared barrel/rod solids per size, validated once each."""
+
+    def __init__(self) -> None:
+        self.shapes: dict[tuple, tuple[TopoDS_Shape, float]] = {}
+
+    def get(self, key: tuple, make: Any, who: str) -> tuple[TopoDS_Shape, float]:
+        hit = self.shapes.get(key)
+        if hit is None:
+            shape = make()
+            if not occ.check_shape(shape):
+                raise GeometryError(f"{who}: hinge barrel/pin solid {key} is invalid (BRepCheck)")
+            hit = (shape, occ.volume(shape))
+            self.shapes[key] = hit
+        return hit
+
+
+def _key(*xs: float) -> tuple:
+    return tuple(round(float(x), 9) for x in xs)
+
+
+def _barrel_matrix(frame: HingeFrame, side: int, s0: float) -> FloatArray:
+    """Local barrel frame (x away from the owning panel, z along the axis) -> flat frame."""
+    sx, sy, sz = frame.s
+    sg = 1.0 if side == 0 else -1.0
+    ux, uy, uz = (sg * c for c in frame.u)
+    ox, oy, oz = frame.origin
+    return np.array([
+        [ux, sy * uz - sz * uy, sx, ox + s0 * sx],
+        [uy, sz * ux - sx * uz, sy, oy + s0 * sy],
+        [uz, sx * uy - sy * ux, sz, oz + s0 * sz],
+        [0.0, 0.0, 0.0, 1.0],
+    ])
+
+
+def _box_solid(frame: HingeFrame, b: Box) -> TopoDS_Shape:
+    rect = np.array([[b.u0, b.s0], [b.u1, b.s0], [b.u1, b.s1], [b.u0, b.s1]])
+    m = np.eye(4)
+    m[:3, 0], m[:3, 1], m[:3, 2] = frame.u, frame.s, frame.w
+    m[:3, 3] = frame.origin
+    return occ.moved(occ.prism(rect, b.w0, b.w1), m)
+
+
+def _box_outline(frame: HingeFrame, b: Box) -> FloatArray:
+    pts = [frame.point(s, u, 0.0)[:2] for s, u in ((b.s0, b.u0), (b.s1, b.u0), (b.s1, b.u1),
+                                                   (b.s0, b.u1))]
+    poly = np.array(pts)
+    return poly if polygon_area(poly) > 0 else poly[::-1].copy()
+
+
+def _notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatures, HingeDesign]],
+             who: str, tol: Tolerances) -> FloatArray:
+    """Insert every hinge notch into the slab outline (no boolean needed)."""
+    inserts: dict[int, list[tuple[float, int, FloatArray]]] = {}
+    k = len(poly)
+    for frame, side, feats, _des in groups:
+        if not feats.notches:
+            continue
+        p2 = np.asarray(frame.origin[:2])
+        d2 = np.asarray(frame.s[:2])
+        m = np.asarray(frame.u[:2]) * (-1.0 if side == 0 else 1.0)
+        off = (poly - p2) @ m
+        nxt = np.roll(np.arange(k), -1)
+        i = int(np.argmin(np.maximum(np.abs(off), np.abs(off[nxt]))))
+        a, b = poly[i], poly[nxt[i]]
+        sa, sb = float((a - p2) @ d2), float((b - p2) @ d2)
+        lo, hi = min(sa, sb), max(sa, sb)
+        seq = inserts.setdefault(i, [])
+        for n in feats.notches:
+            if n.s0 < lo + tol.length or n.s1 > hi - tol.length:
+                raise HingeError(
+                    f"hinge notch {n.s0:.3f}..{n.s1:.3f} mm runs past the edge of {who} "
+                    f"({lo:.3f}..{hi:.3f} mm along the hinge); knuckles are longer than the edge"
+                )
+            for s_edge in (n.s0, n.s1):
+                t = (s_edge - sa) / (sb - sa)
+                e_pt = a + t * (b - a)
+                e_off = float((e_pt - p2) @ m)
+                if n.depth <= e_off + tol.length:
+                    break
+            else:
+                pts = []
+                for s_at in (n.s0, n.s1):
+                    t = (s_at - sa) / (sb - sa)
+                    e_pt = a + t * (b - a)
+                    i_pt = p2 + s_at * d2 + n.depth * m
+                    pts.append((t, e_pt, i_pt))
+                (t0, e0, i0), (t1, e1, i1) = pts
+                if sb < sa:
+                    (t0, e0, i0), (t1, e1, i1) = (t1, e1, i1), (t0, e0, i0)
+                seq.extend([(t0, 0, e0), (t0, 1, i0), (t0, 2, i1), (t0, 3, e1)])  # keyed by notch start
+    if not inserts:
+        return poly
+    out: list[FloatArray] = []
+    for j in range(k):
+        out.append(poly[j])
+        for _, _, pt in sorted(inserts.get(j, []), key=lambda x: (x[0], x[1])):
+            out.append(pt)
+    res = _simplify(np.array(out), tol)
+    if _self_intersects(res):
+        creases = ", ".join(cid(g[3].crease) for g in groups if g[2].notches)
+        raise HingeError(
+            f"hinge notches of {creases} overlap on {who}: the usable hinge lengths leave too little "
+            f"room at the panel's corners for the knuckles and their clearance notches"
+        )
+    return res
+
+
+def _self_intersects(poly: FloatArray) -> bool:
+    """True when two non-adjacent edges of a closed polygon cross or touch (vectorised)."""
+    k = len(poly)
+    a = poly
+    b = np.roll(poly, -1, axis=0)
+
+    def orient(p: FloatArray, q: FloatArray, r: FloatArray) -> FloatArray:
+        return np.sign((q[..., 0] - p[..., 0]) * (r[..., 1] - p[..., 1])
+                       - (q[..., 1] - p[..., 1]) * (r[..., 0] - p[..., 0]))
+
+    A, B = a[:, None, :], b[:, None, :]
+    C, D = a[None, :, :], b[None, :, :]
+    hit = (orient(A, B, C) != orient(A, B, D)) & (orient(C, D, A) != orient(C, D, B))
+    i, j = np.triu_indices(k, 2)
+    keep = ~((i == 0) & (j == k - 1))
+    return bool(hit[i[keep], j[keep]].any())
+
+
+def _simplify(poly: FloatArray, tol: Tolerances) -> FloatArray:
+    """Drop repeated points, straight-through points and zero-width spikes (collinear)."""
+    p = np.asarray(poly, dtype=float)
+    while len(p) > 3:
+        step = p - np.roll(p, 1, axis=0)
+        keep = np.hypot(step[:, 0], step[:, 1]) > tol.merge
+        if not keep.all():
+            p = p[keep]
+            continue
+        u = p - np.roll(p, 1, axis=0)
+        v = np.roll(p, -1, axis=0) - p
+        cross = u[:, 0] * v[:, 1] - u[:, 1] * v[:, 0]
+        scale = np.maximum(np.hypot(u[:, 0], u[:, 1]), np.hypot(v[:, 0], v[:, 1]))
+        flat = np.abs(cross) <= tol.length * scale
+        if not flat.any():
+            break
+        # remove flagged points that do not follow another flagged point, then look again
+        drop = flat & ~np.roll(flat, 1)
+        if not drop.any():
+            drop = flat.copy()
+            drop[1:] = False
+        p = p[~drop]
+    return p
+
+
+def _bevel_lines(slab: Slab, poly: FloatArray) -> list[tuple[str, FloatArray]]:
+    """Where each cut plane meets the top and bottom faces, clipped to the outline."""
+    out = []
+    k = len(poly)
+    for cut in slab.cuts:
+        n = np.asarray(cut.normal, dtype=float)
+        for layer, z in (("BEVEL", slab.z1), ("BEVEL-BOTTOM", slab.z0)):
+            c = cut.offset - n[2] * z
+            nn = n[:2]
+            if np.linalg.norm(nn) == 0:
+                continue
+            vals = poly @ nn - c
+            hits = []
+            for i in range(k):
+                va, vb = vals[i], vals[(i + 1) % k]
+                if (va < 0) != (vb < 0):
+                    t = va / (va - vb)
+                    hits.append(poly[i] + t * (poly[(i + 1) % k] - poly[i]))
+            if len(hits) >= 2:
+                d = np.array([-nn[1], nn[0]])
+                hs = sorted(hits, key=lambda p: float(p @ d))
+                out.append((layer, np.array([hs[0], hs[-1]])))
+    return out
+
+
+def _fold_of(plan: ThickPlan, crease: int) -> float:
+    ta = plan.pattern.target_angles
+    v = float(ta[crease]) if crease < len(ta) else float("nan")
+    return abs(v) if math.isfinite(v) else abs(plan.target_fold)
+
+
+def build_parts(
+    plan: ThickPlan,
+    *,
+    hinge_style: str | HingeStyle = "none",
+    hinge_options: Mapping[str, Any] | None = None,
+    state: FoldState | None = None,
+    material: str | None = None,
+    tol: Tolerances = DEFAULT_TOL,
+) -> PartSet:
+    """Build every panel, pin, tape and flexure part of a thick plan.
+
+    Parameters
+    ----------
+    plan : ThickPlan
+    hinge_style : str or HingeStyle
+        Registry name (``none``, ``knuckle``, ``print-in-place``, ``flexure``, ``tape``) or a
+        style object.
+    hinge_options : mapping, optional
+        Options of a named style (see :mod:`hinges`).
+    state : FoldState, optional
+        Places ``Part.shape``; the flat sheet when None.
+    material : str, optional
+        Material key for slabs that name none (default :data:`DEFAULT_MATERIAL`).
+    tol : Tolerances
+
+    Returns
+    -------
+    PartSet
+        Panels first (``P000`` ...), then hinge parts in crease order.
+    """
+    style = (get_hinge_style(hinge_style, **dict(hinge_options or {}))
+             if isinstance(hinge_style, str) else hinge_style)
+    slabs = {s.panel: s for s in plan.slabs}
+    mats: dict[int, str] = {}
+    for s in plan.slabs:
+        key = s.material or material or DEFAULT_MATERIAL
+        get_material(key, who=pid(s.panel))
+        mats[s.panel] = key
+    designs: list[HingeDesign] = []
+    frames: dict[int, HingeFrame] = {}
+    per_panel: dict[int, list[tuple[HingeFrame, int, SideFeatures, HingeDesign]]] = {}
+    for h in plan.hinges:
+        a, b = h.panels
+        if a not in slabs or b not in slabs:
+            raise GeometryError(f"hinge line {cid(h.crease)} joins panels {a}, {b} without slabs")
+        ctx = HingeContext(
+            h, (slabs[a], slabs[b]),
+            (get_material(mats[a], who=pid(a)), get_material(mats[b], who=pid(b))),
+            _fold_of(plan, h.crease), tol,
+        )
+        des = style.design(ctx)
+        designs.append(des)
+        frames[h.crease] = fr = HingeFrame.of(h)
+        per_panel.setdefault(a, []).append((fr, 0, des.sides[0], des))
+        per_panel.setdefault(b, []).append((fr, 1, des.sides[1], des))
+    cache = _Cache()
+    poses = None if state is None else plan.poses(state)
+    parts: list[Part] = []
+    for slab in plan.slabs:
+        p = slab.panel
+        groups = per_panel.get(p, [])
+        parts.append(_panel_part(slab, groups, mats[p], cache, poses, tol))
+    for des, h in zip(designs, plan.hinges, strict=True):
+        fr = frames[h.crease]
+        for ex in des.extras:
+            parts.append(_extra_part(ex, fr, h.panels[ex.follows], cache, poses))
+    return PartSet(parts, plan, getattr(style, "name", str(hinge_style)), tuple(designs), state,
+                   tol)
+
+
+Piece = tuple[tuple, "TopoDS_Shape", FloatArray]
+
+
+def _translation(xyz: Sequence[float]) -> FloatArray:
+    m = np.eye(4)
+    m[:3, 3] = xyz
+    return m
+
+
+def _place(pieces: list[Piece]) -> TopoDS_Shape:
+    return occ.compound([occ.moved(proto, m) for _, proto, m in pieces])
+
+
+def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
+                poses: FloatArray | None, tol: Tolerances) -> Part:
+    who = pid(slab.panel)
+    poly = slab.polygon_array()
+    if polygon_area(poly) < 0:
+        poly = poly[::-1].copy()
+    poly = _notched(poly, groups, who, tol)
+    centre = np.array([*poly.mean(axis=0), 0.5 * (slab.z0 + slab.z1)])
+    size = 2.0 * (float(np.ptp(poly, axis=0).max()) + slab.thickness) + 1.0
+    tools = [occ.half_space_box(c.normal, c.offset, centre, size) for c in slab.cuts]
+    holes: list[tuple[float, float, float]] = []
+    for fr, _side, feats, _ in groups:
+        tools.extend(_box_solid(fr, r) for r in feats.recesses)
+        for hole in feats.holes:
+            xy = fr.point(hole.s, hole.u, 0.0)[:2]
+            holes.append((float(xy[0]), float(xy[1]), hole.diameter))
+            cyl, _ = cache.get(("rod",) + _key(0.5 * hole.diameter, slab.thickness + 2.0),
+                               lambda d=hole.diameter: occ.cylinder_along_z(
+                                   0.5 * d, slab.thickness + 2.0), who)
+            tools.append(occ.moved(cyl, _translation((xy[0], xy[1], slab.z0 - 1.0))))
+    pieces: list[Piece] = []
+    if tools:
+        body = occ.prism(poly, slab.z0, slab.z1)
+        try:
+            body = occ.cut_many(body, tools)
+        except RuntimeError:
+            raise GeometryError(f"panel {who}: trimming by cuts/recesses/holes failed") from None
+        if not occ.check_shape(body):
+            raise GeometryError(
+                f"panel {who}: the panel solid is invalid (BRepCheck); outline has {len(poly)} "
+                f"corners, {len(slab.cuts)} cuts"
+            )
+        vol = occ.volume(body)
+        pieces.append((("unique", who), body, np.eye(4)))
+    else:
+        # translation-congruent panels share one validated prototype (placed by a location)
+        lo = poly.min(axis=0)
+        rel = poly - lo
+        key = ("body",) + _key(slab.z0, slab.z1) + (
+            np.round(rel / tol.merge).astype(np.int64).tobytes(),)
+
+        def make(rel: FloatArray = rel) -> TopoDS_Shape:
+            return occ.prism(rel, slab.z0, slab.z1)
+
+        try:
+            proto, vol = cache.get(key, make, who)
+        except GeometryError:
+            raise GeometryError(
+                f"panel {who}: the panel solid is invalid (BRepCheck); outline has {len(poly)} "
+                f"corners"
+            ) from None
+        pieces.append((key, proto, _translation((lo[0], lo[1], 0.0))))
+    if vol <= 0:
+        raise GeometryError(f"panel {who}: the panel solid has no volume ({vol:g} mm^3)")
+    for st in slab.standoffs:
+        blk = occ.prism(np.asarray(st.polygon, dtype=float), st.z0, st.z1)
+        if not occ.check_shape(blk):
+            raise GeometryError(f"panel {who}: standoff for {cid(st.crease)} is invalid (BRepCheck)")
+        pieces.append((("unique", who, "standoff", len(pieces)), blk, np.eye(4)))
+        vol += occ.volume(blk)
+    pins: list[float] = []
+    for fr, side, feats, des in groups:
+        for br in feats.barrels:
+            key = ("barrel",) + _key(br.radius, br.hole, br.clip or -1, br.s1 - br.s0)
+            shp, v = cache.get(key, lambda br=br: occ.barrel_profile_prism(
+                br.radius, br.hole, -br.clip if br.clip is not None else None, br.s1 - br.s0), who)
+            pieces.append((key, shp, _barrel_matrix(fr, side, br.s0)))
+            vol += v
+        for rd in feats.rods:
+            key = ("rod",) + _key(rd.radius, rd.s1 - rd.s0)
+            shp, v = cache.get(key, lambda rd=rd: occ.cylinder_along_z(rd.radius, rd.s1 - rd.s0),
+                               who)
+            pieces.append((key, shp, _barrel_matrix(fr, side, rd.s0)))
+            vol += v
+        for bx in feats.boxes:
+            b = _box_solid(fr, bx)
+            pieces.append((("unique", who, "box", len(pieces)), b, np.eye(4)))
+            vol += occ.volume(b)
+        if "pin_diameter" in des.info:
+            pins.append(float(des.info["pin_diameter"]))
+    frame_shape = _place(pieces)
+    shape = frame_shape if poses is None else occ.moved(frame_shape, poses[slab.panel])
+    return Part(
+        who, "panel", shape, frame_shape, material, vol, slab.panel, slab.thickness,
+        float(polygon_area(poly)), poly, holes, _bevel_lines(slab, poly), len(groups),
+        tuple(pins), {"cuts": len(slab.cuts), "standoffs": len(slab.standoffs)}, pieces,
+    )
+
+
+def _extra_part(ex: ExtraPart, fr: HingeFrame, panel: int, cache: _Cache,
+                poses: FloatArray | None) -> Part:
+    pieces: list[Piece] = []
+    vol = 0.0
+    for rd in ex.rods:
+        key = ("rod",) + _key(rd.radius, rd.s1 - rd.s0)
+        shp, v = cache.get(key, lambda rd=rd: occ.cylinder_along_z(rd.radius, rd.s1 - rd.s0),
+                           ex.name)
+        pieces.append((key, shp, _barrel_matrix(fr, 0, rd.s0)))
+        vol += v
+    outline = None
+    thick = 0.0
+    for bx in ex.boxes:
+        b = _box_solid(fr, bx)
+        if not occ.check_shape(b):
+            raise GeometryError(f"{ex.name}: solid is invalid (BRepCheck)")
+        pieces.append((("unique", ex.name, len(pieces)), b, np.eye(4)))
+        vol += occ.volume(b)
+        outline = _box_outline(fr, bx)
+        thick = bx.w1 - bx.w0
+    if not pieces:
+        raise GeometryError(f"{ex.name}: hinge part has no geometry")
+    frame_shape = _place(pieces)
+    shape = frame_shape if poses is None else occ.moved(frame_shape, poses[panel])
+    diameter = float(ex.attrs.get("diameter", 0.0))
+    return Part(
+        ex.name, ex.kind, shape, frame_shape, ex.material or DEFAULT_MATERIAL, vol, panel, thick,
+        float(polygon_area(outline)) if outline is not None else 0.0, outline, [], [], 0,
+        (diameter,) if diameter else (), dict(ex.attrs), pieces,
+    )
