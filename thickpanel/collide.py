@@ -214,15 +214,14 @@ def make_piece(
     fn = hull.equations[:, :3]
     normals_u = _unique_dirs(fn, tol.angle * 1e3)
     # real edges: between two facets whose normals differ
-    e_dirs = []
-    for f, nb in enumerate(hull.neighbors):
-        for k in range(3):
-            g = nb[k]
-            if g < f:
-                continue
-            if float(fn[f] @ fn[g]) > 1.0 - 1e-9:
-                continue
-            e_dirs.append(np.cross(fn[f], fn[g]))
+    nb = hull.neighbors
+    f_idx = np.repeat(np.arange(len(nb)), 3)
+    g_idx = nb.reshape(-1)
+    keep = g_idx > f_idx
+    f_idx, g_idx = f_idx[keep], g_idx[keep]
+    dots = np.einsum("ij,ij->i", fn[f_idx], fn[g_idx])
+    sharp = dots < 1.0 - 1e-9
+    e_dirs = np.cross(fn[f_idx[sharp]], fn[g_idx[sharp]])
     edges_u = _unique_dirs(np.array(e_dirs).reshape(-1, 3), tol.angle * 1e3)
     # orient triangles consistently is not needed for distances
     return Piece(owner, verts, tris.astype(np.int64), normals_u, edges_u, label)

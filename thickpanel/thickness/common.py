@@ -35,6 +35,7 @@ __all__ = [
     "vertex_clearance_radius",
     "sector_angles",
     "inset_polygon",
+    "centroid_bound",
     "z_range",
     "face_hinge_range",
 ]
@@ -80,7 +81,9 @@ def inradius(poly: FloatArray) -> float:
     return best
 
 
-def _centroid_bound(poly: FloatArray) -> float:
+def centroid_bound(poly: FloatArray) -> float:
+    """Distance (mm) from the vertex mean to the nearest edge line of a convex (k, 2) polygon:
+    a cheap lower bound of its inradius."""
     d = np.roll(poly, -1, axis=0) - poly
     ln = np.linalg.norm(d, axis=1)
     ok = ln > 0
@@ -128,7 +131,7 @@ def panel_thicknesses(
             poly = pattern.panel_polygon(p)
             # cheap acceptance first: a convex panel whose centroid is farther than the thickness
             # from every edge line certainly has an inradius at least that large
-            if pattern.panels[p].convex and out[p] <= _centroid_bound(poly):
+            if pattern.panels[p].convex and out[p] <= centroid_bound(poly):
                 continue
             r = inradius(poly)
             if out[p] > r:

@@ -37,6 +37,7 @@ if TYPE_CHECKING:
 
 NAME = "offset-crease"
 _MAX_SOLUTIONS = 64
+_MAX_NODES = 20000
 
 
 def sine_ratio_thickness(pattern: CreasePattern, thickness: float, *, tol: Tolerances = DEFAULT_TOL) -> np.ndarray:
@@ -363,10 +364,17 @@ def _search_bits(
 
     out: list[np.ndarray] = []
     bits = np.zeros(n, dtype=np.int64)
+    budget = [_MAX_NODES]
 
     def dfs(k: int) -> None:
         if len(out) >= _MAX_SOLUTIONS:
             return
+        budget[0] -= 1
+        if budget[0] < 0:
+            raise ThicknessError(
+                f"method {NAME}: the search for hinge faces gave up after {_MAX_NODES} steps "
+                f"({n} panels); give the face choice with bits="
+            )
         if k == n:
             out.append(bits.copy())
             return

@@ -18,6 +18,7 @@ from ..errors import ThicknessError
 from ..pattern import cid, pid
 from ..tolerances import DEFAULT_TOL, Tolerances
 from .common import (
+    centroid_bound,
     edge_cut,
     final_angles,
     inradius,
@@ -94,6 +95,14 @@ def build(
     ang = final_angles(pattern, target, path)
     cp = pattern.crease_panels
     cuts: list[list] = [[] for _ in range(pattern.n_panels)]
+    radius_cache: dict[int, float] = {}
+
+    def radius(p: int) -> float:
+        # exact inradius only when the cheap centroid bound cannot settle it
+        if p not in radius_cache:
+            radius_cache[p] = inradius(pattern.panel_polygon(p))
+        return radius_cache[p]
+
     hinges = []
     for c in fc:
         rho = float(ang[c])
@@ -106,7 +115,10 @@ def build(
             if t_in <= tol.length:
                 continue
             w = bevel_width(t_in, rho)
-            r = inradius(pattern.panel_polygon(p))
+            if pattern.panels[p].convex and w <= centroid_bound(pattern.panel_polygon(p)):
+                r = w
+            else:
+                r = radius(p)
             if w > r:
                 raise ThicknessError(
                     f"bevel of {w:.4g} mm on panel {pid(p)} along crease {cid(c)} exceeds the panel's inradius "
