@@ -7,7 +7,7 @@ border is the polygon through the last ring. All cells are similar to each other
 
 Parameters in the designer's terms (mm and degrees):
 
-* ``arms`` N >= 3, ``rings`` >= 1 (panel rings between hub and border), ``outer_diameter``;
+* ``arms`` N >= 3, ``rings`` >= 1 (vertex rings outside the hub), ``outer_diameter``;
 * the lattice has two parameters (ring scale and twist per ring). They are fixed by the choice of
   variant, by Kawasaki's condition (quad cells, ``flat_foldable=True``) and by what you give:
   ``hub_diameter`` or ``ring_scale`` (the radius ratio of successive rings), and one of ``b``,
@@ -457,7 +457,8 @@ def log_spiral_grid(
     Parameters
     ----------
     arms : int, N >= 3
-    rings : int >= 1, panel rings between hub and border
+    rings : int >= 1, vertex rings outside the hub: rings - 1 rows of full cells, plus one row of
+        triangles at the hub and one at the border
     outer_diameter : float, mm, circumdiameter of the border polygon
     hub_diameter : float, mm, optional; circumdiameter of the hub polygon
     symmetric : bool
@@ -485,9 +486,9 @@ def log_spiral_grid(
 
     Examples
     --------
-    >>> cp = log_spiral_grid(12, 3, 600.0)
-    >>> cp.n_panels
-    37
+    >>> cp = log_spiral_grid(12, 3, 600.0, assign=0)
+    >>> cp.n_panels  # 12 (3 - 1) kites + 2 x 12 triangles + the hub
+    49
     """
     n = _count("arms", arms, 3, 720)
     return _grid("log-spiral", n, rings, outer_diameter, hub_diameter, b, pitch_deg, ring_scale, k, slits,
