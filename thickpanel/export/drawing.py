@@ -294,7 +294,7 @@ def pattern_png(
         lwp = st.width * base_pt
         style: object = "solid" if not st.dashes else (0.0, tuple(d * base_pt / lwp for d in st.dashes))
         cap = "round" if kind == "flat" else "butt"
-        ax.add_collection(LineCollection(seg, colors="black", linewidths=lwp, linestyles=[style], capstyle=cap))
+        ax.add_collection(LineCollection(list(seg), colors="black", linewidths=lwp, linestyles=[style], capstyle=cap))
     fs = max(4.0 * fr.lw * pt_per_mm, 5.0)
     if labels:
         for p in pattern.panels:
