@@ -487,10 +487,19 @@ def _solids(run: _Run) -> None:
         res.metrics["parts"] = len(plist)
         vols = [float(getattr(p, "volume", 0.0) or 0.0) for p in plist]
         res.metrics["total_volume_mm3"] = float(sum(vols))
-        masses: list[Any] = [getattr(p, "mass", None) for p in plist]
+        masses: list[Any] = [_mass(p) for p in plist]
         if masses and all(m is not None for m in masses):
             res.metrics["total_mass_g"] = float(np.sum(np.asarray(masses, dtype=float)))
         res.check("solids valid", "pass", rec["note"])
+
+
+def _mass(part: Any) -> float | None:
+    """Part mass in g, or None when its material has no density (or parts carry no mass)."""
+    try:
+        m = getattr(part, "mass", None)
+    except ThickpanelError:
+        return None
+    return None if m is None else float(m)
 
 
 def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> None:

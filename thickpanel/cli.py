@@ -137,8 +137,19 @@ def _new(args: argparse.Namespace) -> int:
         if line.startswith("name = "):
             lines[i] = f'name = "{target.stem}"'
             break
+    import tomllib
+
+    extra = tomllib.loads(text).get("layout", {}).get("pattern")  # a pattern file the starter imports
+    copies = [(STARTERS / extra, target.parent / extra)] if extra else []
+    for _, dst in copies:
+        if dst.exists() and not args.force:
+            raise _InputError(f"{dst} already exists; use --force to overwrite it")
     try:
         target.parent.mkdir(parents=True, exist_ok=True)
+        for src, dst in copies:
+            tmp = dst.with_name(dst.name + ".tmp")
+            tmp.write_bytes(src.read_bytes())
+            tmp.replace(dst)
         tmp = target.with_name(target.name + ".tmp")
         tmp.write_text("\n".join(lines) + "\n", encoding="utf-8")
         tmp.replace(target)

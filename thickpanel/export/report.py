@@ -217,6 +217,15 @@ def _checks_table(checks: Sequence[dict[str, Any]]) -> str:
     return "\n".join(rows) + "</table>"
 
 
+def _mass(part: Any) -> float:
+    from ..errors import ThickpanelError
+
+    try:
+        return float(getattr(part, "mass", float("nan")))
+    except (ThickpanelError, TypeError, ValueError):
+        return float("nan")
+
+
 def _bom_section(res: Any) -> str:
     parts = getattr(res, "parts", None)
     if parts is None:
@@ -226,7 +235,7 @@ def _bom_section(res: Any) -> str:
         rows.append([p.name, getattr(p, "kind", ""), getattr(p, "material", "") or "-",
                      float(getattr(p, "thickness", float("nan")) or float("nan")),
                      float(getattr(p, "volume", float("nan")) or float("nan")),
-                     float(getattr(p, "mass", float("nan")) or float("nan"))])
+                     _mass(p)])
     return _table(["part", "kind", "material", "thickness (mm)", "volume (mm³)", "mass (g)"], rows, num=(3, 4, 5))
 
 
