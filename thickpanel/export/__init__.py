@@ -93,7 +93,7 @@ def _meshes(ps: PartSet, opt: ExportOptions) -> list:
             f"mesh tolerance stl_linear_mm = {opt.stl_linear_mm!r}, stl_angular_deg = "
             f"{opt.stl_angular_deg!r} out of range; allowed: linear > 0 mm, 0 < angular < 180 deg"
         )
-    return mesh_parts([p.frame_shape for p in ps.parts], linear=opt.stl_linear_mm,
+    return mesh_parts(ps.parts, linear=opt.stl_linear_mm,
                       angular=math.radians(opt.stl_angular_deg), tol=ps.tol)
 
 

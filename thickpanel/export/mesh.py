@@ -12,10 +12,10 @@ from __future__ import annotations
 import io
 import zipfile
 from collections.abc import Sequence
+from typing import Any
 
 import numpy as np
 from OCP.BRepTools import BRepTools
-from OCP.TopoDS import TopoDS_Shape
 
 from .. import occ
 from ..tolerances import DEFAULT_TOL, Tolerances
@@ -29,22 +29,39 @@ _STL_DTYPE = np.dtype([("n", "<f4", (3,)), ("v", "<f4", (3, 3)), ("attr", "<u2")
 
 
 def mesh_parts(
-    shapes: Sequence[TopoDS_Shape], *, linear: float, angular: float, tol: Tolerances = DEFAULT_TOL
+    parts: Sequence[Any], *, linear: float, angular: float, tol: Tolerances = DEFAULT_TOL
 ) -> list[Mesh]:
-    """Mesh every shape (in its own frame): list of ((n, 3) vertices mm, (m, 3) int triangles).
+    """Mesh every part in its flat sheet frame: list of ((n, 3) vertices mm, (m, 3) triangles).
+
+    Each prototype solid (``Part.pieces``) is meshed once and placed by its matrix; the solids of
+    a part are concatenated without merging vertices across solids, so a part made of touching
+    closed solids gives a closed (watertight) mesh.
 
     Parameters
     ----------
-    shapes : sequence of TopoDS_Shape
+    parts : sequence of Part
     linear : float, mm
         Chordal deflection.
     angular : float, rad
         Angular deflection.
     """
-    for s in shapes:
-        BRepTools.Clean_s(s)
-    return [occ.mesh_arrays(s, linear=linear, angular=angular, merge=tol.merge, clean=False)
-            for s in shapes]
+    protos: dict[Any, Mesh] = {}
+    for part in parts:
+        for key, proto, _ in part.pieces:
+            if key not in protos:
+                BRepTools.Clean_s(proto)
+                protos[key] = occ.mesh_arrays(proto, linear=linear, angular=angular,
+                                              merge=tol.merge, clean=False)
+    out: list[Mesh] = []
+    for part in parts:
+        vs, fs, base = [], [], 0
+        for key, _, m in part.pieces:
+            v, f = transform(protos[key], m)
+            vs.append(v)
+            fs.append(f + base)
+            base += len(v)
+        out.append((np.vstack(vs), np.vstack(fs)))
+    return out
 
 
 def transform(mesh: Mesh, matrix: FloatArray) -> Mesh:

@@ -8,6 +8,7 @@ Layers: ``OUTLINE`` (closed polyline of the blank, notches included), ``HOLES`` 
 from __future__ import annotations
 
 import io
+import re
 
 import ezdxf
 import numpy as np
@@ -17,6 +18,7 @@ from ..solids import Part
 __all__ = ["LAYERS", "profile_dxf_bytes"]
 
 LAYERS = ("OUTLINE", "HOLES", "BEVEL", "BEVEL-BOTTOM")
+_STAMP = re.compile(r"(\d+\.\d+\.\d+\w*) @ \d{4}-\d\d-\d\dT[\d:.]+[+-]\d\d:\d\d")
 
 
 def profile_dxf_bytes(part: Part) -> bytes | None:
@@ -44,4 +46,6 @@ def profile_dxf_bytes(part: Part) -> bytes | None:
         doc.write(buf)
     finally:
         ezdxf.options.write_fixed_meta_data_for_testing = old
-    return buf.getvalue().encode("utf-8")
+    # ezdxf stamps its version with the write time; fix it so equal input gives equal bytes
+    text = _STAMP.sub(r"\1 @ 2000-01-01T00:00:00+00:00", buf.getvalue())
+    return text.encode("utf-8")

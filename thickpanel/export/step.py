@@ -10,6 +10,7 @@ readers we check with (OCP's XCAF reader and gmsh).
 from __future__ import annotations
 
 import os
+import re
 import tempfile
 from collections.abc import Sequence
 from pathlib import Path
@@ -41,6 +42,19 @@ def _quiet() -> None:
     """Keep OCCT's transfer statistics off stdout (only failures are printed)."""
     for p in Message.DefaultMessenger_s().Printers():
         p.SetTraceLevel(Message_Gravity.Message_Fail)
+
+
+_NAUO = re.compile(rb"NEXT_ASSEMBLY_USAGE_OCCURRENCE\('(\d+)'")
+
+
+def _renumber(data: bytes) -> bytes:
+    """Number the assembly occurrences 1, 2, ... in file order.
+
+    OCCT takes these ids from a per-process counter, so without this the same input written twice
+    in one session would differ.
+    """
+    count = iter(range(1, 1 << 62))
+    return _NAUO.sub(lambda m: b"NEXT_ASSEMBLY_USAGE_OCCURRENCE('%d'" % next(count), data)
 
 
 def _setup(schema: str) -> None:
@@ -112,6 +126,6 @@ def step_bytes(
     try:
         if writer.Write(tmp) != IFSelect_RetDone:
             raise ExportError(f"STEP writer failed for {name!r}")
-        return Path(tmp).read_bytes()
+        return _renumber(Path(tmp).read_bytes())
     finally:
         os.unlink(tmp)
