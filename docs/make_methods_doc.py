@@ -24,8 +24,11 @@ from thickpanel.layouts import available_layouts, make_layout  # noqa: E402
 from thickpanel.thickness import make_plan, methods_for  # noqa: E402
 
 # Small cases of every family (our own choice of sizes); thickness in mm, target fold in degrees.
-CASES: dict[str, dict[str, Any]] = {
-    "miura": dict(params=dict(a=20.0, b=12.0, gamma_deg=60.0, nx=4, ny=4), thickness=1.0, target_deg=150.0),
+CASES: dict[str, Any] = {
+    "miura": [
+        dict(params=dict(a=20.0, b=12.0, gamma_deg=60.0, nx=4, ny=4), thickness=1.0, target_deg=150.0),
+        dict(params=dict(a=60.0, b=40.0, gamma_deg=60.0, nx=3, ny=3), thickness=0.3, target_deg=176.0),
+    ],
     "square-twist": dict(params=dict(side=40.0, twist_deg=30.0, assignment="two-two"), thickness=1.0,
                          target_deg=150.0),
     "accordion": dict(params=dict(width=40.0, panel_width=30.0, n=4), thickness=2.0, target_deg=175.0),
@@ -151,8 +154,8 @@ def _fmt_deg(x: float) -> str:
     return f"{math.degrees(x):.1f}" if x > 0 else "0"
 
 
-def family_section(name: str, case: dict[str, Any]) -> list[str]:
-    lines = [f"## {name}", ""]
+def family_section(name: str, case: dict[str, Any], index: int = 0) -> list[str]:
+    lines = [f"## {name}" + (f" (case {index + 1})" if index else ""), ""]
     try:
         cp = make_layout(name, **case["params"])
     except ThickpanelError as exc:
@@ -212,7 +215,8 @@ def main() -> int:
         if case is None:
             out += [f"## {name}", "", "No sample case configured in docs/make_methods_doc.py.", ""]
             continue
-        out += family_section(name, case)
+        for k, one in enumerate(case if isinstance(case, list) else [case]):
+            out += family_section(name, one, k)
     text = "\n".join(out).rstrip() + "\n"
     target = ROOT / "docs" / "methods.md"
     fd, tmp = tempfile.mkstemp(dir=target.parent, prefix="methods", suffix=".tmp")

@@ -158,3 +158,36 @@ def test_methods_for_reasons_and_order():
                                                 path=miura_path(cpm, 60.0, math.radians(50), 6))}
     assert not adv_m["hinge-shift"].applies and "parallel" in adv_m["hinge-shift"].reason
     assert adv_m["tapered"].applies
+
+
+def test_knuckle_slots_interleave_on_shared_stowed_lines():
+    # Oracle: hinges whose lines coincide in the stowed stack must not share axial positions.
+    from thickpanel.layouts import make_layout
+    from thickpanel.poses import fold_state_from_angles
+    from thickpanel.thickness.common import folding_creases
+    from thickpanel.thickness.offset_panel import knuckle_slots
+
+    cp = make_layout("accordion", width=40.0, panel_width=30.0, n=5)
+    sign = np.array([1.0 if k == "valley" else -1.0 if k == "mountain" else 0.0 for k in cp.kinds])
+    stowed = fold_state_from_angles(cp, sign * math.pi)
+    fc = folding_creases(cp)
+    slots = knuckle_slots(cp, stowed, fc, {c: (0.0, 0.0) for c in fc}, knuckles=3, stack_tol=1.0)
+    # 4 folds of an accordion stack on two lines, two hinges each: 2 slots per hinge, 4 per line
+    assert all(len(v) == 2 for v in slots.values())
+    world = []
+    for c, lst in slots.items():
+        pose = stowed.poses[int(cp.crease_panels[c, 0])]
+        p0 = np.append(cp.vertices[cp.creases[c, 0]], [0.0, 1.0]) @ pose.T
+        u = np.append(cp.crease_directions[c], [0.0, 0.0]) @ pose.T
+        for _, s0, s1 in lst:
+            a, b = (p0 + s0 * u)[:3], (p0 + s1 * u)[:3]
+            world.append((round(float(a[0]), 6), sorted((float(a[1]), float(b[1])))))
+    by_line: dict[float, list] = {}
+    for x, iv in world:
+        by_line.setdefault(x, []).append(iv)
+    assert len(by_line) == 2
+    for ivs in by_line.values():
+        ivs.sort()
+        assert len(ivs) == 4
+        assert all(ivs[k][1] <= ivs[k + 1][0] + 1e-9 for k in range(3))
+        assert ivs[0][0] == pytest.approx(0.0) and ivs[-1][1] == pytest.approx(40.0)

@@ -7,8 +7,14 @@ its normal to its own layer of the folded stack; standoff blocks join panels to 
 
 Here the layer order comes from the fold state at the end of the path (:mod:`.layers`); the one free
 parameter, the height of the reference surface within the stack, is chosen to minimise the longest
-standoff. For flat-folding targets every interior vertex gets a clearance cut (no vertex whose
-panels keep full thickness to the vertex folds completely flat).
+standoff. Standoffs are split into knuckle-like slots along each hinge; hinges whose lines coincide
+in the stowed state share the line with disjoint slots. Whenever standoffs are needed every interior
+vertex gets a clearance cut (no vertex whose panels keep full thickness to the vertex folds
+completely flat).
+
+Known limit: where a stowed hinge line crosses the interior of panels lying between its panel and
+the hinge plane (as in a flat-folded Miura-ori), the standoffs pass through those panels; windows in
+them are not generated and the clearance sweep reports the contact.
 """
 
 from __future__ import annotations
@@ -18,6 +24,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from ..collide import sweep_pairs
 from ..errors import ThicknessError
 from ..pattern import cid
 from ..poses import fold_state_from_angles
@@ -56,6 +63,105 @@ def reference_height(base: np.ndarray, t: np.ndarray) -> tuple[float, float]:
     return h, max(0.0, (hi - lo) / 2.0)
 
 
+def knuckle_slots(
+    pattern: CreasePattern,
+    stowed: Any,
+    creases: list[int],
+    clears: dict[int, tuple[float, float]],
+    *,
+    knuckles: int,
+    stack_tol: float,
+    tol: Tolerances = DEFAULT_TOL,
+) -> dict[int, list[tuple[int, float, float]]]:
+    """Axial slots of the standoffs of every hinge: ``{crease: [(side, s0, s1), ...]}``.
+
+    ``side`` 0 is the crease's left panel, 1 its right; ``s0, s1`` (mm) run along the crease from
+    its first vertex. Hinge lines that lie on one line in the stowed state (within ``stack_tol``)
+    share the axial positions there, so they get disjoint slots, two per hinge (left, right) across
+    the common usable interval; a hinge alone on its line alternates ``knuckles`` segments.
+
+    Raises
+    ------
+    ThicknessError
+        When a hinge's slot falls outside its own usable length (names the crease).
+    """
+    cp = pattern.crease_panels
+    v = pattern.vertices
+    seg = {}
+    for c in creases:
+        pose = np.asarray(stowed.poses[int(cp[c, 0])]) if stowed is not None else np.eye(4)
+        ends = np.column_stack([v[pattern.creases[c]], np.zeros(2), np.ones(2)]) @ pose.T
+        seg[c] = ends[:, :3]
+    parent = {c: c for c in creases}
+
+    def find(x: int) -> int:
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    cs = list(creases)
+    if stowed is not None and len(cs) > 1:
+        lo = np.array([seg[c].min(axis=0) for c in cs])
+        hi = np.array([seg[c].max(axis=0) for c in cs])
+        for i, j in sweep_pairs(lo, hi, pad=stack_tol / 2.0).tolist():
+            a, b = cs[i], cs[j]
+            pa, da = seg[a][0], seg[a][1] - seg[a][0]
+            la = float(np.linalg.norm(da))
+            da = da / la
+            off = [seg[b][k] - pa for k in range(2)]
+            dist = max(float(np.linalg.norm(o - (o @ da) * da)) for o in off)
+            sb = sorted(float(o @ da) for o in off)
+            overlap = min(la, sb[1]) - max(0.0, sb[0])
+            if dist <= stack_tol and overlap > tol.length:
+                parent[find(a)] = find(b)
+    groups: dict[int, list[int]] = {}
+    for c in cs:
+        groups.setdefault(find(c), []).append(c)
+    out: dict[int, list[tuple[int, float, float]]] = {}
+    for members in groups.values():
+        if len(members) == 1:
+            c = members[0]
+            c0, c1 = clears[c]
+            ln = float(pattern.crease_lengths[c])
+            cuts = np.linspace(c0, ln - c1, knuckles + 1)
+            out[c] = [(k % 2, float(cuts[k]), float(cuts[k + 1])) for k in range(knuckles)]
+            continue
+        members = sorted(members)
+        ref = members[0]
+        o = seg[ref][0]
+        d = seg[ref][1] - seg[ref][0]
+        d = d / np.linalg.norm(d)
+        spans = {}
+        for c in members:
+            c0, c1 = clears[c]
+            ln = float(pattern.crease_lengths[c])
+            s_a, s_b = float((seg[c][0] - o) @ d), float((seg[c][1] - o) @ d)
+            sign = 1.0 if s_b >= s_a else -1.0
+            spans[c] = (s_a, sign, s_a + sign * c0, s_a + sign * (ln - c1))
+        lo_u = max(min(sp[2], sp[3]) for sp in spans.values())
+        hi_u = min(max(sp[2], sp[3]) for sp in spans.values())
+        if hi_u - lo_u <= tol.length:
+            lo_u = min(min(sp[2], sp[3]) for sp in spans.values())
+            hi_u = max(max(sp[2], sp[3]) for sp in spans.values())
+        edges = np.linspace(lo_u, hi_u, 2 * len(members) + 1)
+        for k, c in enumerate(members):
+            s_a, sign, u0, u1 = spans[c]
+            lo_c, hi_c = min(u0, u1), max(u0, u1)
+            out[c] = []
+            for side in (0, 1):
+                w0, w1 = edges[2 * k + side], edges[2 * k + side + 1]
+                w0, w1 = max(w0, lo_c), min(w1, hi_c)
+                if w1 - w0 <= tol.length:
+                    raise ThicknessError(
+                        f"the stowed hinge stack of crease {cid(c)} leaves it no knuckle slot inside its usable "
+                        f"length ({len(members)} hinges share one line)"
+                    )
+                l0, l1 = sorted(((w0 - s_a) * sign, (w1 - s_a) * sign))
+                out[c].append((side, l0, l1))
+    return out
+
+
 def build(
     pattern: CreasePattern,
     *,
@@ -66,6 +172,7 @@ def build(
     vertex_clearance: bool | None = None,
     order: LayerOrder | None = None,
     knuckles: int = 3,
+    stack_tol: float | None = None,
     tol: Tolerances = DEFAULT_TOL,
 ) -> ThickPlan:
     """Offset-panel slabs with standoffs.
@@ -78,16 +185,21 @@ def build(
     standoff_width : float, mm, optional
         Width of each standoff strip into its panel; default the panel thickness.
     vertex_clearance : bool, optional
-        Cut corners at interior vertices; default on when the target is a flat fold.
+        Cut corners at interior vertices; default on whenever the panels need standoffs.
     order : LayerOrder, optional
         A precomputed layer order.
     knuckles : int
         Standoff segments per hinge, alternating between its two panels (odd numbers put the
-        first and last on the left panel).
+        first and last on the left panel) for a hinge whose line no other hinge shares in the
+        stowed state.
+    stack_tol : float, mm, optional
+        Hinge lines closer than this in the stowed state share one stack and interleave their
+        knuckles; default the largest slab thickness.
     """
     target = check_target(target_fold, method=NAME)
     t = panel_thicknesses(pattern, thickness)
     fc = require_folding(pattern, NAME)
+    state_for_order = None
     if order is None:
         if path is not None and len(path.states):
             # at an exact flat fold all reference planes coincide and no order can be read:
@@ -105,10 +217,12 @@ def build(
                     f"do not close (closure error {state.closure_error:.3g})"
                 )
         order = layer_order(pattern, state, thickness=t, tol=tol)
+        state_for_order = state
     shift, longest = reference_height(order.base, t)
-    flat = target >= math.pi - 1e-3
     if vertex_clearance is None:
-        vertex_clearance = flat
+        # standoffs of different hinges meet at a vertex as soon as the fold starts unless the
+        # corners are cleared; a single-layer sheet needs none
+        vertex_clearance = longest > tol.length
     radii: dict[int, float] = {}
     if vertex_clearance:
         for v in pattern.interior_vertices:
@@ -132,11 +246,10 @@ def build(
     n_k = int(knuckles)
     if n_k < 1:
         raise ThicknessError(f"knuckles = {knuckles!r} is out of range; allowed: a whole number >= 1")
+    clears: dict[int, tuple[float, float]] = {}
     for c in fc:
         a_, b_ = pattern.creases[c]
-        pa, pb = v[a_], v[b_]
-        u = (pb - pa) / np.linalg.norm(pb - pa)
-        ln = float(np.linalg.norm(pb - pa))
+        ln = float(pattern.crease_lengths[c])
         clear0 = clear1 = 0.0
         for end, vv in ((0, int(a_)), (1, int(b_))):
             r = radii.get(vv, 0.0)
@@ -153,17 +266,25 @@ def build(
                 f"vertex clearances ({clear0:.3g} + {clear1:.3g} mm) leave no hinge length on crease {cid(c)} "
                 f"of length {ln:.4g} mm; allowed: total < crease length (thinner panels or larger panels)"
             )
-        # knuckle segments alternate between the two panels along the usable length, so the
-        # standoffs of the two sides never share an axial position (as the knuckles of a hinge)
-        cuts_at = np.linspace(clear0, ln - clear1, n_k + 1)
+        clears[c] = (clear0, clear1)
+    stowed = path.states[-1] if path is not None and len(path.states) else state_for_order
+    gap = float(stack_tol) if stack_tol is not None else float(np.max(t))
+    slots = knuckle_slots(pattern, stowed, fc, clears, knuckles=n_k, stack_tol=gap, tol=tol)
+    for c in fc:
+        a_, b_ = pattern.creases[c]
+        pa, pb = v[a_], v[b_]
+        u = (pb - pa) / np.linalg.norm(pb - pa)
+        clear0, clear1 = clears[c]
         for side, p in enumerate((int(cp[c, 0]), int(cp[c, 1]))):
             z0, z1 = z_of[p]
             w = float(standoff_width) if standoff_width is not None else float(t[p])
             inset[(p, c)] = w
             inward = np.array([-u[1], u[0]]) * (1.0 if side == 0 else -1.0)
-            for k in range(side, n_k, 2):
-                s0 = pa + u * cuts_at[k]
-                s1 = pa + u * cuts_at[k + 1]
+            for k_side, lo_s, hi_s in slots[c]:
+                if k_side != side:
+                    continue
+                s0 = pa + u * lo_s
+                s1 = pa + u * hi_s
                 qa = np.array([s0, s1, s1 + inward * w, s0 + inward * w])
                 e1, e2 = qa[1] - qa[0], qa[2] - qa[0]
                 if float(e1[0] * e2[1] - e1[1] * e2[0]) < 0:
