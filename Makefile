@@ -14,6 +14,7 @@ $(STAMP): pyproject.toml
 
 demo: $(STAMP)
 	$(PY) -m thickpanel.demo
+	$(PY) examples/spiral_drawings.py exports/drawings
 
 lint: $(STAMP)
 	$(PY) -m ruff check thickpanel hinges tests bench examples

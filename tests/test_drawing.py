@@ -125,3 +125,18 @@ def test_importable_without_cadquery():
     code = "import sys, thickpanel.export.drawing; print('cadquery' in sys.modules or 'OCP' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_example_script_writes_drawings(tmp_path):
+    # the example behind `make demo`: at least two spiral designs, SVG + PNG each
+    from pathlib import Path
+
+    script = Path(__file__).resolve().parents[1] / "examples" / "spiral_drawings.py"
+    out = subprocess.run([sys.executable, str(script), str(tmp_path)], capture_output=True, text=True, check=True)
+    svgs = sorted(p.stem for p in tmp_path.glob("*.svg"))
+    pngs = sorted(p.stem for p in tmp_path.glob("*.png"))
+    assert svgs == pngs and {"sun-shade-disc", "antenna-backing"} <= set(svgs)
+    for stem in svgs:
+        ET.parse(tmp_path / f"{stem}.svg")
+        assert (tmp_path / f"{stem}.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert "sun-shade-disc" in out.stdout

@@ -133,8 +133,8 @@ def kresling(
             arm.append(j)
     label = name or f"kresling n={n} R={r:g}mm H={h:g}mm phi={phi_deg:g}deg x{ns}"
     cp = CreasePattern(verts, np.array(cre), kinds, seams=seams, name=label, tol=tol)
-    info = LayoutInfo(tuple(labels), np.array(arm, dtype=np.int64), n,
-                      {"a": a, "b": b, "c": c, "sides": float(n), "radius": r, "height": h, "twist_deg": phi_deg})
+    params = {"edge_a": a, "edge_b": b, "edge_c": c, "sides": float(n), "radius": r, "height": h, "twist_deg": phi_deg}
+    info = LayoutInfo(tuple(labels), np.array(arm, dtype=np.int64), n, params)
     attach_info(cp, info)
     return choose_assignment(cp, assign, tol=tol)
 
