@@ -64,10 +64,12 @@ def test_new_writes_named_starter(starter):
 
 
 def test_new_list_and_refuse_overwrite(starter):
-    r = run("new", "--list", "x", "--json")
+    r = run("new", "--list", "--json")
     assert r.returncode == 0
     names = strict_json(r.stdout)["scenarios"]
-    assert "miura-reference" in names
+    assert {"miura-reference", "shelter-roof", "lamp-shade", "reflector-backing"} <= set(names)
+    r = run("new")
+    assert r.returncode == 2 and "new needs NAME" in r.stderr
     r = run("new", str(starter))
     assert r.returncode == 2
     assert "already exists" in r.stderr and "Traceback" not in r.stderr

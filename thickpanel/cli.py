@@ -71,7 +71,7 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--version", action="version", version=f"thickpanel {__version__}")
     sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
     n = sub.add_parser("new", parents=[common], help="write a commented starter design file")
-    n.add_argument("name", help="file to write (.toml added when missing); its stem names the design")
+    n.add_argument("name", nargs="?", help="file to write (.toml added when missing); its stem names the design")
     n.add_argument("--scenario", default="miura-reference",
                    help="bundled scenario to start from (see --list; default: miura-reference)")
     n.add_argument("--list", action="store_true", help="list the bundled scenarios and exit")
@@ -121,6 +121,8 @@ def _new(args: argparse.Namespace) -> int:
         else:
             sys.stdout.write("\n".join(names) + "\n")
         return EXIT_OK
+    if not args.name:
+        raise _InputError("new needs NAME, the design file to write (or --list to see the scenarios)")
     if args.scenario not in names:
         from .design import suggest
 

@@ -1,22 +1,42 @@
-"""`make demo`: run the main job on the bundled example (placeholder until the CLI lands)."""
+"""`make demo`: run ``thickpanel build`` on the flagship example and say where everything went.
+
+The flagship is ``examples/miura-reference.toml`` (the bundled starter of the same name when the
+examples folder is not there, e.g. in an installed copy). Exports go to ``exports/<name>/`` in the
+current directory.
+"""
 
 from __future__ import annotations
 
 import sys
+from pathlib import Path
+
+FLAGSHIP = "miura-reference"
 
 
-def main() -> int:
-    """Build a small reference pattern and print its checks."""
-    from .pattern import CreasePattern
+def flagship_file() -> Path:
+    """The flagship design file: the repository's example, else the packaged starter."""
+    repo = Path(__file__).resolve().parents[1] / "examples" / f"{FLAGSHIP}.toml"
+    if repo.is_file():
+        return repo
+    return Path(__file__).resolve().parent / "starters" / f"{FLAGSHIP}.toml"
 
-    cp = CreasePattern(
-        [[0, 0], [100, 0], [200, 0], [0, 100], [100, 100], [200, 100]],
-        [[0, 1], [1, 2], [2, 5], [5, 4], [4, 3], [3, 0], [1, 4]],
-        ["border"] * 6 + ["valley"],
-        name="two-panel reference",
-    )
-    sys.stdout.write(f"{cp!r}: {len(cp.problems())} problems\n")
-    return 0
+
+def main(argv: list[str] | None = None) -> int:
+    """Build the flagship example; returns the command line's exit code."""
+    from .cli import main as cli_main
+
+    design = flagship_file()
+    out = Path.cwd() / "exports" / FLAGSHIP
+    args = ["build", str(design), "-o", str(out)] + list(argv if argv is not None else sys.argv[1:])
+    sys.stdout.write(f"thickpanel {' '.join(args)}\n")
+    sys.stdout.flush()
+    code = cli_main(args)
+    if code in (0, 1):
+        report = out / f"{FLAGSHIP}-report.html"
+        sys.stdout.write(f"\nexports: {out}\n")
+        if report.is_file():
+            sys.stdout.write(f"report:  {report}\n")
+    return code
 
 
 if __name__ == "__main__":
