@@ -55,6 +55,6 @@ def get_layout(name: str) -> LayoutFn:
         ) from None
 
 
-def make_layout(name: str, **params: Any) -> CreasePattern:
+def make_layout(name: str, /, **params: Any) -> CreasePattern:
     """Build the layout ``name`` with keyword parameters (mm and degrees as each documents)."""
     return get_layout(name)(**params)
