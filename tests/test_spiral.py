@@ -166,3 +166,21 @@ def test_deterministic():
     a = log_spiral_grid(10, 4, 500.0, symmetric=False, b=1.3, slits=2, assign=0)
     b = log_spiral_grid(10, 4, 500.0, symmetric=False, b=1.3, slits=2, assign=0)
     assert np.array_equal(a.vertices, b.vertices) and a.kinds == b.kinds
+
+
+def test_solve_tolerance_changes_the_result():
+    # tol.solve is the root-solve tolerance: a loose one leaves a visible Kawasaki residual
+    tight = layout_info(log_spiral_grid(12, 5, 1200.0, symmetric=False, b=2.0, assign=0))
+    loose = layout_info(
+        log_spiral_grid(12, 5, 1200.0, symmetric=False, b=2.0, assign=0, tol=Tolerances(solve=1e-3, kawasaki=1e-1))
+    )
+    assert abs(tight.params["lattice_residual"]) < 1e-12
+    assert abs(loose.params["lattice_residual"]) > 1e-8
+
+
+def test_flat_foldable_false_logs_the_deviation(caplog):
+    import logging
+
+    with caplog.at_level(logging.INFO, logger="thickpanel"):
+        log_spiral_grid(12, 5, 1200.0, hub_diameter=200.0, flat_foldable=False, assign="keep")
+    assert any("largest Kawasaki deviation" in r.getMessage() for r in caplog.records)

@@ -27,6 +27,7 @@ creases leaving a corner enclose a fixed angle, the hub polygon another) and are
 
 from __future__ import annotations
 
+import logging
 import math
 import numbers
 from dataclasses import dataclass
@@ -59,6 +60,7 @@ from .spiral_lattice import (
 __all__ = ["log_spiral_grid", "spiral_rings", "spiral_radial", "GridSpec", "TRIANGULATE"]
 
 TRIANGULATE: tuple[str, ...] = ("none", "short", "long")
+_LOG = logging.getLogger("thickpanel")
 _H_RANGE = (0.0, 4.0)  # ln(ring scale) searched by the solver: ring scale 1..~55
 
 
@@ -414,6 +416,8 @@ def _grid(
             f"{spec.layout}: vertex {vid(worst)} misses Kawasaki by {dev:.3g} rad (tolerance {tol.kawasaki:g}); "
             "the lattice step order changed for these parameters; pass flat_foldable=False to keep them"
         )
+    if not flat_foldable and dev > tol.kawasaki:
+        _LOG.info("%s: kept the given parameters; largest Kawasaki deviation %.3g rad", label, dev)
     beta = 2 * math.pi / n
     dm, dj = spec.ref_step
     bb = h / (dm * d + dj * beta)
