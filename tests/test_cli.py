@@ -206,3 +206,22 @@ def test_internal_error_exit_3(monkeypatch, starter, capsys):
     assert cli.main(["check", str(starter)]) == 3
     err = capsys.readouterr().err
     assert "internal error (ZeroDivisionError: simulated)" in err and "Traceback" not in err
+
+
+@pytest.mark.skipif(not has("thickpanel.kinematics"), reason="thickpanel.kinematics not written yet")
+def test_locked_membrane_design_warns_and_sizes_slack(tmp_path):
+    # Standard square twist: locked with ideal hinges (Hull, *Origametry*, 2020). A membrane-gap
+    # design (Zirbel et al. 2013, J. Mech. Des. 135:111005: membranes suit patterns that are not
+    # rigidly foldable) still gets a plan; the fold and the clearance are reported as unproven and
+    # the hinge play the least-squares fold needs is sized.
+    text = ('[layout]\nfamily = "square-twist"\nside = 40.0\ntwist_deg = 30.0\n[panels]\nthickness = 1.0\n'
+            '[method]\nname = "membrane-gap"\n[fold]\ntarget_deg = 120.0\nstates = 10\n')
+    r = run("check", str(write(tmp_path, text)), "--json")
+    assert r.returncode == 0, r.stderr
+    s = strict_json(r.stdout)
+    verdicts = {c["check"]: c["verdict"] for c in s["checks"]}
+    assert verdicts["rigid-foldable"] == "warn"
+    assert verdicts["joint slack (locked pattern)"] == "warn"
+    assert verdicts["clearance over the fold"] == "warn"
+    assert verdicts["thickness method"] == "pass"
+    assert s["metrics"]["slack_max_play_mm"] > 0

@@ -38,6 +38,9 @@ log = logging.getLogger("thickpanel")
 Progress = Callable[[str, int, int], None]
 """Progress callback ``(label, done, total)``; called at the start (0) and end of long steps."""
 
+SLACK_MAX_DEG = 179.0  # joint_slack needs a target below 180 deg
+SLACK_STATES = 6  # few fractions: the slack figure is a sizing hint, not a path
+
 ORDER = ("pattern", "foldability", "rigidity", "fold path", "method", "clearance", "solids",
          "exports", "drawings", "report")
 
@@ -277,6 +280,31 @@ def _rigidity(run: _Run, cp: Any) -> None:
             res.check("rigid-foldable", "pass", detail)
         else:
             res.check("rigid-foldable", "fail" if d.checks.require_rigid else "warn", detail)
+    if v.kind == "locked":
+        _slack(run, cp)
+
+
+def _slack(run: _Run, cp: Any) -> None:
+    """Hinge play a locked pattern needs to fold with rigid panels (least-squares fold)."""
+    res, d = run.res, run.res.design
+    fn, why = _api("kinematics", "joint_slack")
+    if fn is None:
+        run.skip("joint slack", "not available", why)
+        return
+    target = min(d.fold.target, math.radians(SLACK_MAX_DEG))
+    with run.stage("joint slack") as rec:
+        try:
+            rep = fn(cp, target=target, n_states=SLACK_STATES)
+        except ThickpanelError as exc:
+            rec["status"] = "failed"
+            rec["note"] = str(exc)
+            return
+        worst = ", ".join(f"{h} {mm:.3g} mm" for h, mm in rep.worst(3))
+        rec["note"] = (f"largest hinge play {rep.max_play_mm:.3g} mm to fold {_deg(target):.0f} deg with rigid "
+                       f"panels (worst: {worst})")
+        res.metrics["slack_max_play_mm"] = rep.max_play_mm
+        res.check("joint slack (locked pattern)", "warn", rec["note"] + "; choose hinge clearances, compliant "
+                  "hinges or slits accordingly")
 
 
 def _fold_path(run: _Run, cp: Any, target: float) -> None:
@@ -302,8 +330,10 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         except ThickpanelError as exc:
             rec["status"] = "failed"
             rec["note"] = str(exc)
-            res.check("fold path", "fail", str(exc))
-            run.blocked = "no fold path"
+            # a locked pattern is already a verdict; its designs (membrane, slack hinges) still get a
+            # plan and flat parts unless the design asks for rigid folding
+            locked = res.rigid is not None and res.rigid.kind == "locked" and not d.checks.require_rigid
+            res.check("fold path", "warn" if locked else "fail", str(exc))
             return
         res.path = path
         reach = max(float(np.abs(s.angles).max()) if len(s.angles) else 0.0 for s in path.states)
@@ -391,7 +421,9 @@ def _check_options(fn: Callable[..., Any], opts: dict[str, Any], where: str, fix
 def _clearance(run: _Run) -> None:
     res, d = run.res, run.res.design
     if run.blocked or res.plan is None or res.path is None:
-        run.skip("clearance", "blocked", run.blocked or "no plan or fold path")
+        why = run.blocked or ("no fold path" if res.path is None else "no thickness plan")
+        run.skip("clearance", "blocked", why)
+        res.check("clearance over the fold", "warn", f"not proven: {why}")
         return
     fn, why = _api("clearance", "clearance")
     if fn is None:
@@ -518,6 +550,9 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
             if f not in names:
                 raise DesignFileError(f"[exports] formats: {f!r} is not an export format{suggest(f, names)} "
                                       f"(available: {', '.join(names)})")
+    note = ""
+    if res.path is None and any(t > 0 for t in states):
+        states, note = (0.0,), "; no fold path: deployed (flat) state only"
     with run.stage("exports") as rec:
         n = 0
         for i, t in enumerate(states):
@@ -528,7 +563,7 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
             paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
-        rec["note"] = f"{n} files in {res.out_dir}"
+        rec["note"] = f"{n} files in {res.out_dir}{note}"
 
 
 def run_check(design: Design, *, progress: Progress | None = None) -> dict[str, Any]:
