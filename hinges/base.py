@@ -256,9 +256,13 @@ def knuckle_layout(
 ) -> list[tuple[float, float]]:
     """``n`` knuckle intervals (s0, s1) centred in the usable length, separated by ``axial`` mm.
 
+    An ``axial`` margin is kept at both ends of the usable length too, so that the clearance
+    notches around the end knuckles stay inside it.
+
     Raises HingeError naming the crease when they do not fit the usable hinge length.
     """
     a, b = ctx.hinge.usable
+    a, b = a + axial, b - axial  # the other panel's clearance notches stay inside the usable length
     usable = max(0.0, b - a)
     if n < 1:
         raise HingeError(f"{style} hinge on {ctx.cid}: knuckles = {n}; allowed: >= 1")
@@ -271,7 +275,8 @@ def knuckle_layout(
         if need > usable + ctx.tol.length:
             raise HingeError(
                 f"{style} hinge on {ctx.cid}: {n} knuckles of {k:g} mm with {axial:g} mm gaps need "
-                f"{need:g} mm, longer than the usable hinge length {usable:g} mm; knuckle length "
+                f"{need:g} mm, longer than the usable hinge length less end clearances "
+                f"{usable:g} mm; knuckle length "
                 f"must be <= {max(k_max, 0):.3f} mm"
             )
     if k < min_length:

@@ -88,13 +88,13 @@ def test_auto_pin_is_largest_preferred_size_that_fits():
 
 
 def test_knuckles_longer_than_usable_length():
-    # two 40 x 30 panels: crease 30 mm, usable 2.25..27.75 = 25.5 mm
+    # two 40 x 30 panels: crease 30 mm, usable 2.25..27.75 = 25.5 mm, less 0.2 mm at both ends
     with pytest.raises(HingeError) as e:
         hinges.get_hinge_style("knuckle", knuckles=3, knuckle_length_mm=9.0).design(ctx())
     msg = str(e.value)
-    assert "C006" in msg and "27.4 mm" in msg and "25.5 mm" in msg
-    # limit (25.5 - 2 * 0.2) / 3 = 8.3667 mm
-    assert "<= 8.367 mm" in msg
+    assert "C006" in msg and "27.4 mm" in msg and "25.1 mm" in msg
+    # limit (25.1 - 2 * 0.2) / 3 = 8.2333 mm
+    assert "<= 8.233 mm" in msg
 
 
 def test_machined_knuckle_uses_iso_fit_mean_sizes():

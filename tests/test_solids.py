@@ -71,8 +71,8 @@ def test_knuckle_panels_volume_matches_notches_and_barrels():
     assert (len(a_barrels), len(b_barrels)) == (2, 1)
     br = a_barrels[0]
     k = br.s1 - br.s0
-    # usable 2.25..27.75 mm, 3 knuckles, 0.2 mm gaps: k = (25.5 - 0.4) / 3
-    assert k == pytest.approx((25.5 - 0.4) / 3)
+    # usable 2.25..27.75 mm less 0.2 mm at each end, 3 knuckles, 0.2 mm gaps: k = (25.1 - 0.4) / 3
+    assert k == pytest.approx((25.1 - 0.4) / 3)
     R, c, ca, cr = br.radius, br.clip, 0.2, 0.3
     barrel = k * (clipped_disk_area(R, c) - math.pi * br.hole**2)
     own = (c - g / 2) * k
@@ -83,8 +83,15 @@ def test_knuckle_panels_volume_matches_notches_and_barrels():
     assert pa.volume == pytest.approx(t * (39.75 * 30 - 2 * own - other) + 2 * barrel, rel=1e-9)
     assert pb.volume == pytest.approx(t * (39.75 * 30 - own - 2 * other) + barrel, rel=1e-9)
     assert occ.volume(pa.frame_shape) == pytest.approx(pa.volume, rel=1e-9)
+    # each barrel touches its panel body (OCP BRepExtrema distance 0), no overlap (common volume)
+    from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+
+    body, *barrels = occ.solids_of(pa.frame_shape)
+    for b in barrels:
+        assert BRepExtrema_DistShapeShape(b, body).Value() < 1e-7
+        assert common_volume(b, body) < 1e-6
     # pin: ISO 286-2 g6 mean 1.995 mm over the three knuckles + 2 gaps
-    assert pin.volume == pytest.approx(math.pi * (1.995 / 2) ** 2 * (25.5), rel=1e-9)
+    assert pin.volume == pytest.approx(math.pi * (1.995 / 2) ** 2 * 25.1, rel=1e-9)
     assert pin.pins == (2.0,) and pin.attrs["fit"] == "H7/g6"
 
 
@@ -171,3 +178,35 @@ def test_miura_parts_share_prototypes_and_stay_valid():
     for p in ps.parts:
         assert all_valid(p)
         assert occ.volume(p.frame_shape) == pytest.approx(p.volume, rel=1e-9)
+
+
+def test_knuckles_on_standoffs_touch_but_never_overlap():
+    # offset-panel-like plan: the axis at z = 4.5 lies above the 3 mm slabs; 3 mm standoffs on
+    # each side carry the hinge. Overlap truth by BRepAlgoAPI_Common volume (OCP).
+    import itertools
+
+    from thickpanel.thickness.plan import HingeLine, Standoff
+
+    base = plain_plan(two_panels(), 3.0, 0.5)
+    h0 = base.hinges[0]
+    st_a = Standoff(6, ((36.75, 0.0), (39.75, 0.0), (39.75, 30.0), (36.75, 30.0)), 3.0, 6.0)
+    st_b = Standoff(6, ((40.25, 0.0), (43.25, 0.0), (43.25, 30.0), (40.25, 30.0)), 3.0, 6.0)
+    s0, s1 = base.slabs
+    slabs = (Slab(0, s0.polygon, 0.0, 3.0, (), (st_a,)), Slab(1, s1.polygon, 0.0, 3.0, (), (st_b,)))
+    hinge = HingeLine(6, h0.panels, (40.0, 0.0, 4.5), h0.direction, "top", 0.5, h0.usable,
+                      h0.fold_range)
+    plan = ThickPlan(base.pattern, "offset-panel", slabs, (hinge,), base.target_fold)
+    ps = build_parts(plan, hinge_style="knuckle")
+    for p in ps.parts[:2]:
+        sol = occ.solids_of(p.frame_shape)
+        assert len(sol) == 2 + len(ps.designs[0].sides[p.panel].barrels)
+        assert all(occ.check_shape(x) for x in sol)
+        for a, b in itertools.combinations(sol, 2):
+            assert common_volume(a, b) < 1e-6
+        assert occ.volume(p.frame_shape) == pytest.approx(p.volume, rel=1e-9)
+        # every barrel touches its standoff (OCP BRepExtrema distance 0): the part is connected
+        from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+
+        for barrel in sol[2:]:
+            assert BRepExtrema_DistShapeShape(barrel, sol[1]).Value() < 1e-7
+    assert common_volume(ps.parts[0].frame_shape, ps.parts[1].frame_shape) < 1e-6

@@ -195,11 +195,15 @@ def _box_outline(frame: HingeFrame, b: Box) -> FloatArray:
 
 
 def _notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatures, HingeDesign]],
-             who: str, tol: Tolerances) -> FloatArray:
-    """Insert every hinge notch into the slab outline (no boolean needed)."""
+             who: str, tol: Tolerances, *, clip: bool = False) -> FloatArray:
+    """Insert every hinge notch into the slab outline (no boolean needed).
+
+    With ``clip`` (standoff blocks, shorter than the hinge) notches are clipped to the edge
+    instead of refused.
+    """
     inserts: dict[int, list[tuple[float, int, FloatArray]]] = {}
     k = len(poly)
-    for frame, side, feats, _des in groups:
+    for frame, side, feats, des in groups:
         if not feats.notches:
             continue
         p2 = np.asarray(frame.origin[:2])
@@ -213,10 +217,15 @@ def _notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatu
         lo, hi = min(sa, sb), max(sa, sb)
         seq = inserts.setdefault(i, [])
         for n in feats.notches:
-            if n.s0 < lo + tol.length or n.s1 > hi - tol.length:
+            if clip:
+                n = type(n)(max(n.s0, lo), min(n.s1, hi), n.depth)
+                if n.s1 - n.s0 <= tol.length:
+                    continue
+            if n.s0 < lo - tol.length or n.s1 > hi + tol.length:
                 raise HingeError(
-                    f"hinge notch {n.s0:.3f}..{n.s1:.3f} mm runs past the edge of {who} "
-                    f"({lo:.3f}..{hi:.3f} mm along the hinge); knuckles are longer than the edge"
+                    f"hinge notch {n.s0:.3f}..{n.s1:.3f} mm of {cid(des.crease)} runs past the edge "
+                    f"of {who} ({lo:.3f}..{hi:.3f} mm along the hinge); knuckles are longer than "
+                    f"the edge"
                 )
             for s_edge in (n.s0, n.s1):
                 t = (s_edge - sa) / (sb - sa)
@@ -464,11 +473,38 @@ def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
     if vol <= 0:
         raise GeometryError(f"panel {who}: the panel solid has no volume ({vol:g} mm^3)")
     for st in slab.standoffs:
-        blk = occ.prism(np.asarray(st.polygon, dtype=float), st.z0, st.z1)
+        fp = np.asarray(st.polygon, dtype=float)
+        blk = occ.prism(fp if polygon_area(fp) > 0 else fp[::-1].copy(), st.z0, st.z1)
+        # make room for the hinge in the standoff (one multi-tool cut): under this panel's own
+        # barrels cut back to the barrel's chord, under the other panel's a cylinder of the notch
+        # radius around the axis
+        cyl_tools = []
+        span = 2.0 * size
+        for fr, side, feats, des in groups:
+            if des.crease != st.crease:
+                continue
+            own = {(b.s0, b.s1) for b in feats.barrels}
+            for n in feats.notches:
+                if (n.s0, n.s1) in own:
+                    u0, u1 = (-n.depth, span) if side == 0 else (-span, n.depth)
+                    cyl_tools.append(_box_solid(fr, Box(n.s0, n.s1, u0, u1, -span, span)))
+                    continue
+                proto, _ = cache.get(("rod",) + _key(n.depth, n.s1 - n.s0),
+                                     lambda n=n: occ.cylinder_along_z(n.depth, n.s1 - n.s0), who)
+                cyl_tools.append(occ.moved(proto, _barrel_matrix(fr, 0, n.s0)))
+        if cyl_tools:
+            try:
+                blk = occ.cut_many(blk, cyl_tools)
+            except RuntimeError:
+                raise GeometryError(f"panel {who}: clearing the standoff of {cid(st.crease)} "
+                                    f"around its hinge failed") from None
+        v_st = occ.volume(blk)
+        if v_st <= tol.length:
+            continue  # the hinge clearance took the whole block
         if not occ.check_shape(blk):
             raise GeometryError(f"panel {who}: standoff for {cid(st.crease)} is invalid (BRepCheck)")
         pieces.append((("unique", who, "standoff", len(pieces)), blk, np.eye(4)))
-        vol += occ.volume(blk)
+        vol += v_st
     pins: list[float] = []
     for fr, side, feats, des in groups:
         for br in feats.barrels:
