@@ -390,6 +390,13 @@ def _grid(
         )
     # Kawasaki is one equation for quads, an identity for the triangulated cells
     h, d = _resolve(spec, spec.steps, n, m, outer, builtin, given, not tri, flat_foldable, tol)
+    beta_n = 2.0 * math.pi / n
+    if layout == "log-spiral" and not 0.0 < d < beta_n:
+        raise PatternError(
+            f"log-spiral: the given values give a twist of {math.degrees(d):.6g} deg per ring; the two spiral "
+            f"families wind in opposite senses only for 0 < twist < 360/N = {360.0 / n:.6g} deg, i.e. "
+            f"b > {h / beta_n:.6g} at ring scale {math.exp(h):.6g}"
+        )
     diag: Step | None = None
     if tri:
         w = [abs(complex(math.exp(s[0] * h) * math.cos(s[0] * d + s[1] * 2 * math.pi / n) - 1.0,
