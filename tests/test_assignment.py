@@ -115,3 +115,20 @@ def test_angle_tolerance_changes_blb():
     same = CreasePattern(v, cr, ["mountain", "mountain", "mountain", "valley"] + ["border"] * 4)
     assert local_violations(same, same.kinds, [0])[1].tolist() == [0]
     assert local_violations(same, same.kinds, [0], tol=Tolerances(angle=0.5))[1].tolist() == []
+
+
+def test_patterns_without_layout_info_are_classed_by_geometry():
+    # a spiral grid rebuilt from its arrays: the similarity keying finds the two spiral families
+    # and the hub edges (3 classes -> 2^3 uniform assignments; alternation needs the arm index)
+    cp = log_spiral_grid(12, 4, 800.0, assign="keep")
+    plain = CreasePattern(cp.vertices, cp.creases, cp.kinds)
+    ranked = assignments(plain)
+    assert len(ranked) == 8
+    # Miura-ori (Schenk & Guest 2013 geometry): translation keying; a class-wise assignment passing
+    # Maekawa and big-little-big exists (zigzag creases one kind per direction class)
+    from thickpanel.layouts.classic import miura_ori
+
+    m = miura_ori(20.0, 10.0, 60.0, 6, 4)
+    best = assignments(m)[0]
+    assert best.ok
+    assert check_foldability(best.apply(m)).ok

@@ -250,20 +250,43 @@ class Assignment:
         return out
 
 
+MAX_CLASSES = 8  # 4^8 = 65,536 candidates at most
+
+
 def _geometric_info(pattern: CreasePattern, tol: Tolerances) -> LayoutInfo:
-    """Crease classes of a pattern without layout info: equal length and direction (mod pi)."""
+    """Crease classes of a pattern without layout info.
+
+    Two keyings are tried and the one giving fewer classes wins: translation (direction mod pi and
+    length; strips and tilings) and similarity about the origin (angle between the crease and the
+    radius to its first vertex, and length over that radius; spiral grids centred at the origin).
+    """
+    v = pattern.vertices
+    c = pattern.creases
     d = pattern.crease_directions
+    q_a = max(tol.angle * 1e3, 1e-9)
+    q_l = max(tol.length * 1e3, 1e-9)
     ang = np.mod(np.arctan2(d[:, 1], d[:, 0]), math.pi)
-    q_ang = np.round(ang / max(tol.angle * 1e3, 1e-9)).astype(np.int64)
-    q_len = np.round(pattern.crease_lengths / max(tol.length * 1e3, 1e-9)).astype(np.int64)
-    keys: dict[tuple[int, int], str] = {}
-    labels = []
-    for k, (a, ln) in enumerate(zip(q_ang.tolist(), q_len.tolist(), strict=True)):
-        if pattern.kinds[k] in NON_FOLDING:
-            labels.append(pattern.kinds[k])
-            continue
-        labels.append(keys.setdefault((a, ln), f"class{len(keys) + 1}"))
-    return LayoutInfo(tuple(labels), np.zeros(pattern.n_creases, dtype=np.int64), 1)
+    trans = np.stack([np.round(ang / q_a), np.round(pattern.crease_lengths / q_l)], 1).astype(np.int64)
+    p0 = v[c[:, 0]]
+    r0 = np.hypot(p0[:, 0], p0[:, 1])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        rel = np.mod(np.arctan2(d[:, 1], d[:, 0]) - np.arctan2(p0[:, 1], p0[:, 0]), 2 * math.pi)
+        ratio = np.where(r0 > tol.length, pattern.crease_lengths / np.where(r0 > 0, r0, 1.0), -1.0)
+    simil = np.stack([np.round(rel / q_a), np.round(ratio / (q_l / max(float(r0.max()), 1.0)))], 1)
+    simil = np.nan_to_num(simil, nan=-1).astype(np.int64)
+    fold = np.array([k not in NON_FOLDING for k in pattern.kinds], dtype=bool)
+    best: list[str] = []
+    for keyset in (trans, simil):
+        keys: dict[tuple[int, int], str] = {}
+        labels = []
+        for k in range(pattern.n_creases):
+            if not fold[k]:
+                labels.append(pattern.kinds[k])
+                continue
+            labels.append(keys.setdefault((int(keyset[k, 0]), int(keyset[k, 1])), f"class{len(keys) + 1}"))
+        if not best or len(set(labels)) < len(set(best)):
+            best = labels
+    return LayoutInfo(tuple(best), np.zeros(pattern.n_creases, dtype=np.int64), 1)
 
 
 def _options(label: str, alternate: bool) -> tuple[str, ...]:
@@ -326,6 +349,11 @@ def assignments(
     classes = folding_classes(info)
     if not classes:
         raise PatternError(f"pattern {pattern.name!r} has no folding creases to assign")
+    if len(classes) > MAX_CLASSES:
+        raise PatternError(
+            f"pattern {pattern.name!r} has {len(classes)} crease classes; at most {MAX_CLASSES} can be enumerated "
+            "(build it with a layout generator, which records its crease families)"
+        )
     interior = pattern.interior_vertices
     res = kawasaki_residuals(pattern, interior)
     flat_ok = np.abs(np.nan_to_num(res, nan=np.inf)) <= tol.kawasaki
