@@ -128,7 +128,7 @@ def _segments(pattern: CreasePattern) -> dict[str, np.ndarray]:
 def _legend_layout(pattern: CreasePattern, fr: _Frame, font_mm: float) -> list[tuple[str, float, float]]:
     """(kind, x of the line sample, sample length) for a right-aligned one-row legend, mm."""
     kinds = list(_segments(pattern))
-    sample = 26.0 * fr.lw
+    sample = 34.0 * fr.lw  # two dash-dot-dot periods
     widths = [sample + 1.5 * fr.lw + 0.62 * font_mm * len(_LEGEND_TEXT[k]) + 5.0 * fr.lw for k in kinds]
     x = fr.x1 - sum(widths)
     out = []
@@ -230,7 +230,7 @@ def pattern_svg(
             f'font-size="{_fmt(1.2 * fs)}" text-anchor="middle">{_fmt(length)} mm</text>'
         )
     if legend:
-        for kind, xx, sample in _legend_layout(pattern, fr, fs):
+        for kind, xx, sample in _legend_layout(pattern, fr, 1.2 * fs):
             st = LINE_STYLES[kind]
             dash = f' stroke-dasharray="{" ".join(_fmt(d * lw) for d in st.dashes)}"' if st.dashes else ""
             out.append(
@@ -239,7 +239,7 @@ def pattern_svg(
             )
             out.append(
                 f'<text x="{_fmt(xx + sample + 1.5 * lw)}" y="{_fmt(ybase + fs / 3)}" font-family="sans-serif" '
-                f'font-size="{_fmt(fs)}">{_LEGEND_TEXT[kind]}</text>'
+                f'font-size="{_fmt(1.2 * fs)}">{_LEGEND_TEXT[kind]}</text>'
             )
     out.append("</svg>")
     return "\n".join(out) + "\n"
@@ -319,13 +319,13 @@ def pattern_png(
             ax.plot([xx, xx], [ybase - t, ybase + t], color="black", lw=1.2 * base_pt)
         ax.text(fr.x0 + length / 2, ybase - 4 * fr.lw, f"{_fmt(length)} mm", ha="center", va="top", fontsize=1.2 * fs)
     if legend:
-        for kind, xx, sample in _legend_layout(pattern, fr, 4.0 * fr.lw):
+        for kind, xx, sample in _legend_layout(pattern, fr, 1.2 * fs / pt_per_mm):
             st = LINE_STYLES[kind]
             lwp = st.width * base_pt
             style = "solid" if not st.dashes else (0.0, tuple(d * base_pt / lwp for d in st.dashes))
             ax.add_collection(LineCollection([[(xx, ybase), (xx + sample, ybase)]], colors="black",
                                              linewidths=lwp, linestyles=[style]))
-            ax.text(xx + sample + 1.5 * fr.lw, ybase, _LEGEND_TEXT[kind], va="center", fontsize=fs)
+            ax.text(xx + sample + 1.5 * fr.lw, ybase, _LEGEND_TEXT[kind], va="center", fontsize=1.2 * fs)
     buf = io.BytesIO()
     fig.savefig(buf, format="png", dpi=dpi, facecolor="white", metadata={"Software": None})
     return buf.getvalue()
