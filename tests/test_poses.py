@@ -87,3 +87,17 @@ def test_bad_angles_shape_names_count():
     cp = ring(3)
     with pytest.raises(FoldError, match=f"one entry per crease \\({cp.n_creases}\\)"):
         fold_state_from_angles(cp, np.zeros(3))
+
+
+def test_seamed_tube_has_no_flat_start():
+    # A closed ring cannot lie flat (its exterior angles must sum to 2 pi, standard geometry), so
+    # the solver refuses a flat start and the verdict is "unknown" with the reason.
+    from thickpanel.kinematics import fold_path, joint_slack, rigid_foldability
+
+    cp = ring(6)
+    with pytest.raises(FoldError, match="closed by seams.*no flat state"):
+        fold_path(cp)
+    with pytest.raises(FoldError, match="closed by seams"):
+        joint_slack(cp, target=1.0, n_states=3)
+    v = rigid_foldability(cp)
+    assert v.kind == "unknown" and "seams" in v.reason

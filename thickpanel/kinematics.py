@@ -320,6 +320,24 @@ def _resolve_driver(model: LoopModel, driver: Any) -> int | None:
     return k
 
 
+def require_closed_flat(model: LoopModel, tol: Tolerances) -> None:
+    """Raise :class:`FoldError` when the flat state itself does not close (a seamed tube).
+
+    A strip joined by seams into a tube has no flat deployed state: its fold path would have to
+    start from the closed tube, which this solver does not construct yet.
+    """
+    if not model.cycles:
+        return
+    r, _ = model.residual_jacobian(np.zeros(model.n), jac=False)
+    if len(r) and float(np.abs(r).max()) > tol.closure:
+        seams = ", ".join(f"{cid(s.a)}/{cid(s.b)}" for s in model.pattern.seams[:4])
+        raise FoldError(
+            f"pattern {model.pattern.name!r} is closed by seams ({seams}); its flat strip does not close, so "
+            "there is no flat state to fold from (reachable range of a flat start: none). Fold paths from a "
+            "closed deployed tube are not modelled yet"
+        )
+
+
 def _default_target(model: LoopModel) -> float:
     ta = model.pattern.target_angles[model.var_crease]
     ta = ta[np.isfinite(ta)]
@@ -402,6 +420,7 @@ def fold_path(
     if int(n_states) < 2:
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (flat and target states)")
     n_states = int(n_states)
+    require_closed_flat(model, tol)
     tr = _tracker(model, k_drv, tol)
     if not closed_form:
         tr.closed = None

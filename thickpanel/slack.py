@@ -32,7 +32,7 @@ import scipy.sparse.linalg as spla
 from scipy.spatial.transform import Rotation
 
 from .errors import FoldError
-from .kinematics import DEFAULT_FULL_FOLD, _default_target, _start_direction, loop_model
+from .kinematics import DEFAULT_FULL_FOLD, _default_target, _start_direction, loop_model, require_closed_flat
 from .pattern import CreasePattern, cid
 from .poses import _graph_edges, edge_transforms
 from .tolerances import DEFAULT_TOL, Tolerances
@@ -41,6 +41,9 @@ from .typing import FloatArray, IntArray
 __all__ = ["SlackReport", "joint_slack", "SLACK_CAUTION"]
 
 _SIGN_WEIGHT = 10.0  # weight (per mm of hinge length and rad) against folding a hinge the wrong way
+_NOMINAL_WEIGHT = 0.1  # weight (per mm of hinge length and rad) of the pull towards the nominal fold
+_MERIT = 100.0  # weight (x sheet size) of the overall-fold equation in the step acceptance test
+_STALL = 1e-3  # x target: overall-fold shortfall at which the least-squares fold counts as stalled
 _MAX_SUBSTEP = float(np.deg2rad(5.0))  # rad: continuation step of the overall fold between solves
 
 SLACK_CAUTION = (
@@ -72,6 +75,11 @@ class SlackReport:
         Largest end-point mismatch of each hinge (translation and tilt together).
     target : float, rad
         Fold magnitude at t = 1.
+    poses : (k, P, 4, 4) float
+        Panel poses of the least-squares fold at every fraction (flat sheet frame -> folded, mm).
+    stop_reason : str
+        ``target``, or ``stalled`` when the least-squares fold could not reach a fraction (some
+        hinge would have to pass 180 deg); the rows then end at the last fraction reached.
     """
 
     fractions: FloatArray
@@ -83,6 +91,8 @@ class SlackReport:
     total_mm: FloatArray
     play_mm: FloatArray
     target: float
+    poses: FloatArray
+    stop_reason: str = "target"
 
     @property
     def max_play_mm(self) -> float:
@@ -116,7 +126,8 @@ class SlackReport:
     def summary(self) -> str:
         """Plain-text table for reports (mm and degrees)."""
         lines = [
-            f"joint slack to {np.rad2deg(self.target):.4g} deg: largest hinge play {self.max_play_mm:.4g} mm",
+            f"joint slack to {np.rad2deg(self.target):.4g} deg: largest hinge play {self.max_play_mm:.4g} mm"
+            + ("" if self.stop_reason == "target" else f" (stalled after t = {self.fractions[-1]:g})"),
             "     t   total mm   along mm  across mm  off-axis deg",
         ]
         for r in self.rows():
@@ -159,6 +170,7 @@ def joint_slack(
         For a target outside (0, pi) or fewer than 2 states.
     """
     model = loop_model(pattern)
+    require_closed_flat(model, tol)
     tgt = float(_default_target(model) if target is None else target)
     if not (0.0 < tgt < np.pi):
         raise FoldError(
@@ -172,15 +184,26 @@ def joint_slack(
     poses = np.broadcast_to(np.eye(4), (pattern.n_panels, 4, 4)).copy()
     rows = []
     level = 0.0
+    kept = []
+    stalled = False
     for t in fractions:
-        while level < t * tgt:
+        while level < t * tgt and not stalled:
             level = min(t * tgt, level + _MAX_SUBSTEP)
             poses = prob.solve(poses, level)
+            stalled = abs(prob.overall(poses) - level) > _STALL * tgt
+        if stalled:  # the least-squares fold cannot go further (a hinge would pass 180 deg)
+            break
         rows.append(prob.measure(poses))
+        kept.append(poses)
+    fractions = fractions[: len(rows)]
     along, across, tilt, fold, end = (np.array([r[i] for r in rows]) for i in range(5))
     total = np.sqrt((end**2).sum(axis=1)) if end.size else np.zeros(len(fractions))
     hinges = tuple(cid(int(c)) for c in prob.edges[:, 2])
-    return SlackReport(fractions, hinges, along, across, tilt, fold, total, end, tgt)
+    all_poses = np.array(kept)
+    all_poses.setflags(write=False)
+    return SlackReport(
+        fractions, hinges, along, across, tilt, fold, total, end, tgt, all_poses, "stalled" if stalled else "target"
+    )
 
 
 class _Problem:
@@ -251,7 +274,9 @@ class _Problem:
             xa, xb, pair = np.concatenate([xa, oa]), np.concatenate([xb, ob]), np.concatenate([pair, f])
         return xa, xb, pair
 
-    def _system(self, poses: FloatArray, level: float) -> tuple[FloatArray, sp.csr_matrix, float, FloatArray]:
+    def _system(
+        self, poses: FloatArray, level: float, pull: bool = True
+    ) -> tuple[FloatArray, sp.csr_matrix, float, FloatArray]:
         """Residual, sparse Jacobian (w.r.t. world-frame increments at z = 0), constraint and its gradient."""
         xa, xb, pair = self._points(poses)
         r = (xa - xb).reshape(-1)
@@ -304,18 +329,30 @@ class _Problem:
         wrong = (self.sign * rho < 0) & self.folding
         pen = _SIGN_WEIGHT * self.length * np.where(wrong, self.sign * rho, 0.0)
         P = sp.diags(_SIGN_WEIGHT * self.length * np.where(wrong, self.sign, 0.0)) @ G
-        return np.concatenate([r, pen]), sp.vstack([J, P]).tocsr(), c, g
+        # a weak pull towards the nominal fold keeps loosely held panels from taking up the whole fold
+        wn = (_NOMINAL_WEIGHT if pull else 0.0) * self.length * self.folding
+        nominal = level * self.dir / max(float(np.abs(self.dir).max()), 1e-300)
+        res_n = wn * (rho - nominal)
+        Q = sp.diags(wn) @ G
+        return np.concatenate([r, pen, res_n]), sp.vstack([J, P, Q]).tocsr(), c, g
 
     def solve(self, ref: FloatArray, level: float) -> FloatArray:
-        """Gauss-Newton with the overall-fold equation as an exact linear constraint (KKT system)."""
+        """Least-squares poses at overall fold ``level``: first with the weak pull towards the
+        nominal fold, then polished without it (a rigid pattern then ends with zero play)."""
         if not len(self.free):
             return ref
         poses = ref
         if level > 0 and np.allclose(ref, np.eye(4)):
             poses = self.poses_from(ref, self._first_guess(level))
+        poses = self._gauss_newton(poses, level, pull=True)
+        return self._gauss_newton(poses, level, pull=False)
+
+    def _gauss_newton(self, poses: FloatArray, level: float, *, pull: bool) -> FloatArray:
+        """Gauss-Newton with the overall-fold equation as an exact linear constraint (KKT system)."""
         mu = 1e-9
-        r, J, c, g = self._system(poses, level)
-        cost = float(r @ r)
+        big = (_MERIT * self.ext) ** 2
+        r, J, c, g = self._system(poses, level, pull)
+        cost = float(r @ r) + big * c * c
         n = J.shape[1]
         for _ in range(60):
             N = (J.T @ J).tocsc()
@@ -329,9 +366,9 @@ class _Problem:
                     mu *= 100
                     continue
                 trial = self.poses_from(poses, sol[:n])
-                r2, J2, c2, g2 = self._system(trial, level)
-                cost2 = float(r2 @ r2)
-                if cost2 <= cost * (1 + 1e-12) or abs(c2) < 0.5 * abs(c):
+                r2, J2, c2, g2 = self._system(trial, level, pull)
+                cost2 = float(r2 @ r2) + big * c2 * c2
+                if cost2 <= cost * (1 + 1e-12):
                     break
                 mu *= 100
             else:
@@ -344,6 +381,10 @@ class _Problem:
             if done or (step < self.tol.length * 1e-3 and abs(c) < self.tol.angle):
                 break
         return poses
+
+    def overall(self, poses: FloatArray) -> float:
+        """Overall fold (rad) of ``poses``: the fold angles projected on the nominal direction."""
+        return float(self.folds(poses) @ self.dir) * max(float(np.abs(self.dir).max()), 1e-300)
 
     def poses_from(self, ref: FloatArray, z: FloatArray) -> FloatArray:
         """Poses after world-frame increments ``z`` (rotation vector, translation mm) per free panel."""

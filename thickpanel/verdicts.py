@@ -308,9 +308,13 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
     FoldError
         Only for unusable input (disconnected panels, nothing to fold).
     """
-    from .kinematics import _tracker, fold_path, loop_model
+    from .kinematics import _tracker, fold_path, loop_model, require_closed_flat
 
     model = loop_model(pattern)
+    try:
+        require_closed_flat(model, tol)
+    except FoldError as exc:
+        return RigidVerdict("unknown", -1, (), str(exc), 0.0)
     cf = closed_form_path(model, tol=tol) if not model.cycles else None
     if cf is not None and not cf.ok:
         return RigidVerdict("locked", 0, tuple(cf.where), cf.reason, 0.0)

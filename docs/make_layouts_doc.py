@@ -1,0 +1,236 @@
+"""Write docs/layouts.md: which registered layouts fold rigidly, how far, into what shape.
+
+Run from the project root: ``.venv/bin/python docs/make_layouts_doc.py``. Every layout in
+:func:`thickpanel.layouts.available_layouts` is built with small parameters (a table below, or
+the generator's defaults for layouts added later), judged by
+:func:`thickpanel.kinematics.rigid_foldability`, folded with
+:func:`thickpanel.kinematics.fold_path` when rigid or by :func:`thickpanel.kinematics.joint_slack`
+when locked, and pictured at t = 0.25, 0.5, 0.75 and 1 (PNG files in ``docs/img/``). The
+Markdown is generated; do not edit it by hand.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import sys
+import tempfile
+import time
+from pathlib import Path
+from typing import Any
+
+import matplotlib
+
+matplotlib.use("Agg")
+import matplotlib.pyplot as plt  # noqa: E402
+import numpy as np  # noqa: E402
+from mpl_toolkits.mplot3d.art3d import Poly3DCollection  # noqa: E402
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+from thickpanel.errors import ThickpanelError  # noqa: E402
+from thickpanel.kinematics import DEFAULT_FULL_FOLD, fold_path, joint_slack, rigid_foldability  # noqa: E402
+from thickpanel.layouts import available_layouts, make_layout  # noqa: E402
+
+# small parameter sets per layout; several variants where the assignment or grid matters
+VARIANTS: dict[str, list[tuple[str, dict[str, Any]]]] = {
+    "accordion": [("5 panels", dict(width=100.0, panel_width=20.0, n=5))],
+    "miura": [("6 x 6, gamma 60 deg", dict(a=20.0, b=10.0, gamma_deg=60.0, nx=6, ny=6))],
+    "square-twist": [
+        ("standard assignment", dict(side=20.0, twist_deg=30.0, assignment="standard")),
+        ("two-two assignment", dict(side=20.0, twist_deg=30.0, assignment="two-two")),
+    ],
+    "log-spiral": [
+        ("6 arms, 2 rings, symmetric", dict(arms=6, rings=2, outer_diameter=300.0)),
+        ("6 arms, 2 rings, chiral", dict(arms=6, rings=2, outer_diameter=300.0, symmetric=False, pitch_deg=50.0)),
+        ("6 arms, 2 rings, 1 slit", dict(arms=6, rings=2, outer_diameter=300.0, slits=1)),
+    ],
+    "spiral-rings": [("6 arms, 2 rings", dict(arms=6, rings=2, outer_diameter=300.0))],
+    "spiral-radial": [("6 arms, 2 rings", dict(arms=6, rings=2, outer_diameter=300.0))],
+    "kresling": [("defaults", {})],
+}
+FRACTIONS = (0.25, 0.5, 0.75, 1.0)
+SLACK_TARGET = float(np.deg2rad(120.0))  # rad: overall fold for the slack of locked patterns
+N_STATES = 21
+
+
+def _slug(name: str, label: str) -> str:
+    keep = "".join(ch if ch.isalnum() else "-" for ch in f"{name}-{label}".lower())
+    return "-".join(p for p in keep.split("-") if p)
+
+
+def _panel_polys(pattern: Any, poses: np.ndarray) -> list[np.ndarray]:
+    out = []
+    for p in range(pattern.n_panels):
+        poly = pattern.panel_polygon(p)
+        h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
+        out.append((h @ poses[p].T)[:, :3])
+    return out
+
+
+def shape_of(pattern: Any, poses: np.ndarray) -> str:
+    """Heuristic name of a folded shape: stack, disc, dome, cone, folded strip or twisted strip.
+
+    From the principal extents of the folded corners (thin: stack when the footprint shrank, else
+    disc), the flat sheet's aspect (strips), and for curved sheets from which of height ~ r or
+    height ~ r^2 fits the panel centres better (cone or dome).
+    """
+    pts = np.concatenate(_panel_polys(pattern, poses))
+    ext = np.sort(np.ptp((pts - pts.mean(0)) @ np.linalg.svd(pts - pts.mean(0), full_matrices=False)[2].T, axis=0))
+    ext = ext[::-1]
+    xy = np.ptp(pattern.vertices, axis=0)
+    strip = max(xy) > 3 * min(xy)
+    area = float(np.prod(np.ptp(pattern.vertices, axis=0)))
+    foot = ext[0] * ext[1] / area
+    if ext[2] < 0.15 * ext[0]:
+        if foot < 0.8:
+            return f"stack (footprint {100 * foot:.0f} % of the flat sheet)"
+        return "disc (nearly flat)"
+    if strip:
+        normals = np.array([poses[p][:3, 2] for p in range(pattern.n_panels)])
+        spread = np.linalg.norm(normals - normals.mean(0), axis=1).max()
+        return "twisted strip" if spread > 0.5 else "folded strip"
+    cents = np.array([np.mean(q, axis=0) for q in _panel_polys(pattern, poses)])
+    c0 = cents.mean(0)
+    _, _, vt = np.linalg.svd(cents - c0)
+    z = (cents - c0) @ vt[2]
+    r = np.linalg.norm((cents - c0) @ vt[:2].T, axis=1)
+    lin = np.linalg.lstsq(np.c_[np.ones_like(r), r], z, rcond=None)[1]
+    quad = np.linalg.lstsq(np.c_[np.ones_like(r), r**2], z, rcond=None)[1]
+    lin_e = float(lin[0]) if len(lin) else 0.0
+    quad_e = float(quad[0]) if len(quad) else 0.0
+    return "cone" if lin_e < quad_e else "dome"
+
+
+def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) -> bytes:
+    """PNG of the fold states side by side (grey shading only; no mountain/valley colours)."""
+    fig = plt.figure(figsize=(8.0, 2.3), dpi=60)
+    allp = np.concatenate([np.concatenate(_panel_polys(pattern, s)) for _, s in states])
+    lo, hi = allp.min(0), allp.max(0)
+    mid, half = (lo + hi) / 2, (hi - lo).max() / 2 or 1.0
+    for k, (t, poses) in enumerate(states):
+        ax = fig.add_subplot(1, len(states), k + 1, projection="3d")
+        polys = _panel_polys(pattern, poses)
+        shade = []
+        for q in polys:
+            n = np.cross(q[1] - q[0], q[2] - q[0])
+            n = n / (np.linalg.norm(n) or 1.0)
+            shade.append(0.35 + 0.5 * abs(n[2]))
+        ax.add_collection3d(
+            Poly3DCollection(polys, facecolors=[(g, g, g) for g in shade], edgecolors="k", linewidths=0.3)
+        )
+        for i, axis in enumerate((ax.set_xlim, ax.set_ylim, ax.set_zlim)):
+            axis(mid[i] - half, mid[i] + half)
+        ax.set_axis_off()
+        ax.set_title(f"t = {t:g}", fontsize=8)
+    fig.suptitle(title, fontsize=8)
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=60)
+    plt.close(fig)
+    return buf.getvalue()
+
+
+def _write(path: Path, data: bytes) -> None:
+    path.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=path.name, suffix=".tmp")
+    with os.fdopen(fd, "wb") as fh:
+        fh.write(data)
+    os.replace(tmp, path)
+
+
+def study(name: str, label: str, params: dict[str, Any], img_dir: Path) -> dict[str, str]:
+    """One table row: verdict, reach, folded shape, slack and picture for one layout variant."""
+    row = {"layout": name, "variant": label, "params": ", ".join(f"{k}={v}" for k, v in params.items()) or "defaults"}
+    try:
+        cp = make_layout(name, **params)
+    except (ThickpanelError, TypeError, ValueError) as exc:
+        row.update(verdict="not built", reach="", shape="", slack="", picture="", note=str(exc)[:160])
+        return row
+    if cp.seams:
+        row["size"] = f"{cp.n_panels} panels, {int(cp.folding.sum())} folding creases, {len(cp.seams)} seams"
+        v = rigid_foldability(cp)
+        row.update(verdict=f"{v.kind} (dof {v.dof})", reach="not modelled (closed tube)", shape="tube", picture="")
+        row.update(slack="not modelled yet (needs the closed deployed tube as start)", note=v.reason)
+        return row
+    row["size"] = f"{cp.n_panels} panels, {int(cp.folding.sum())} folding creases"
+    t0 = time.perf_counter()
+    verdict = rigid_foldability(cp)
+    row["verdict"] = f"{verdict.kind} (dof {verdict.dof})"
+    row["note"] = verdict.reason
+    states: list[tuple[float, np.ndarray]] = []
+    if verdict.kind == "rigid":
+        path = fold_path(cp, n_states=N_STATES)
+        reach = float(path.meta["reachable"])
+        row["reach"] = f"{np.rad2deg(reach):.1f} deg ({path.stop_reason})"
+        states = [(t, path.at(t).poses) for t in FRACTIONS if t <= float(path.fractions[-1])]
+        row["slack"] = "none needed"
+    else:
+        row["reach"] = "0 deg (flat only)"
+        try:
+            rep = joint_slack(cp, target=SLACK_TARGET, n_states=5)
+        except ThickpanelError as exc:
+            row["slack"] = f"not computed: {exc}"[:160]
+        else:
+            worst = rep.worst(1)
+            at = {f"{t:g}": rep.play_mm[i].max() for i, t in enumerate(rep.fractions)}
+            last = float(rep.fractions[-1])
+            row["slack"] = (
+                f"{rep.max_play_mm:.3g} mm by {np.rad2deg(last * SLACK_TARGET):.0f} deg (t=0.5: "
+                f"{at.get('0.5', 0.0):.3g} mm; worst hinge {worst[0][0] if worst else '-'})"
+            )
+            states = [(float(t), rep.poses[i]) for i, t in enumerate(rep.fractions) if t > 0]
+            if rep.stop_reason != "target":
+                row["slack"] += f"; the least-squares fold stalls after t = {last:g} (a hinge reaches 180 deg)"
+    row["shape"] = shape_of(cp, states[-1][1]) if states else ""
+    if states:
+        slug = _slug(name, label)
+        _write(img_dir / f"{slug}.png", picture(cp, states, f"{name}: {label}"))
+        row["picture"] = f"![{name} {label}](img/{slug}.png)"
+    else:
+        row["picture"] = ""
+    row["seconds"] = f"{time.perf_counter() - t0:.2f}"
+    return row
+
+
+def main(out: Path = ROOT / "docs" / "layouts.md") -> None:
+    img_dir = out.parent / "img"
+    rows = []
+    for name in available_layouts():
+        for label, params in VARIANTS.get(name, [("defaults", {})]):
+            rows.append(study(name, label, params, img_dir))
+    lines = [
+        "# Layouts: rigid folding, reach, folded shape and joint slack",
+        "",
+        "Generated by `docs/make_layouts_doc.py` (do not edit by hand). Every registered layout is built with",
+        "small parameters and judged with ideal hinges and rigid panels: `rigid_foldability` (rigid / locked,",
+        "degrees of freedom after the first step off flat), `fold_path` to the default target",
+        f"({np.rad2deg(DEFAULT_FULL_FOLD):g} deg unless the layout gives target angles) for rigid ones, and",
+        f"`joint_slack` to {np.rad2deg(SLACK_TARGET):.0f} deg for locked ones (largest hinge end-point mismatch of the",
+        "least-squares fold with rigid panels). Pictures show t = 0.25, 0.5, 0.75, 1 of the fold (for locked",
+        "layouts: of the least-squares fold). The folded-shape word is a heuristic from the folded extents.",
+        "",
+        "Hinge play figures are geometric requirements of ideal rigid panels, not a hinge design; assess",
+        "stored energy, fatigue, pinch points and flight or structural qualification against the applicable",
+        "codes and standards with qualified engineering review.",
+        "",
+        "| layout | variant | size | verdict | reach | folded shape | slack a locked version needs |",
+        "| --- | --- | --- | --- | --- | --- | --- |",
+    ]
+    for r in rows:
+        lines.append(
+            f"| {r['layout']} | {r['variant']} | {r.get('size', '')} | {r['verdict']} | {r.get('reach', '')} | "
+            f"{r.get('shape', '')} | {r.get('slack', '')} |"
+        )
+    lines.append("")
+    for r in rows:
+        lines += [f"## {r['layout']}: {r['variant']}", "", f"Parameters: `{r['params']}`.", ""]
+        lines += [f"Verdict: {r['verdict']}. {r.get('note', '')}", ""]
+        if r.get("picture"):
+            lines += [r["picture"], ""]
+    _write(out, ("\n".join(lines) + "\n").encode())
+    sys.stdout.write(f"wrote {out} and {sum(1 for r in rows if r.get('picture'))} pictures in {img_dir}\n")
+
+
+if __name__ == "__main__":
+    main()
