@@ -90,7 +90,7 @@ def main() -> None:
     ap.add_argument("--jitter", type=float, default=0.0,
                     help="move inner vertices by up to this many mm so no two panels are congruent")
     args = ap.parse_args()
-    cp = make_layout("miura", a=30.0, b=25.0, gamma_deg=70.0, nx=args.nx, ny=args.ny)
+    cp = make_layout("miura", a=40.0, b=35.0, gamma_deg=70.0, nx=args.nx, ny=args.ny)
     if args.jitter > 0:
         rng = np.random.default_rng(1)
         v = cp.vertices.copy()

@@ -16,6 +16,7 @@ Panel A is ``hinge.panels[0]``, panel B ``hinge.panels[1]``. The solid builder
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, Protocol
 
@@ -41,6 +42,7 @@ __all__ = [
     "SideFeatures",
     "ExtraPart",
     "HingeDesign",
+    "SheetPart",
     "HingeContext",
     "HingeStyle",
     "knuckle_layout",
@@ -64,13 +66,14 @@ class HingeFrame:
     @classmethod
     def of(cls, hinge: HingeLine) -> HingeFrame:
         """The frame of ``hinge``: ``u = s x w`` points from panel A to panel B."""
-        d = np.asarray(hinge.direction, dtype=float)
-        d = d / np.linalg.norm(d)
-        w = np.array([0.0, 0.0, 1.0])
-        u = np.cross(d, w)
-        u /= np.linalg.norm(u)
-        w = np.cross(u, d)
-        return cls(_t3(hinge.point), _t3(d), _t3(u), _t3(w))
+        dx, dy, dz = (float(c) for c in hinge.direction)
+        n = math.sqrt(dx * dx + dy * dy + dz * dz)
+        dx, dy, dz = dx / n, dy / n, dz / n
+        ux, uy = dy, -dx  # d x (0, 0, 1)
+        nu = math.hypot(ux, uy)
+        ux, uy = ux / nu, uy / nu
+        w = (-dz * uy, dz * ux, ux * dy - uy * dx)  # u x d
+        return cls(_t3(hinge.point), (dx, dy, dz), (ux, uy, 0.0), w)
 
     def matrix(self) -> FloatArray:
         """(4, 4) float: hinge frame (s, u, w) -> flat sheet frame."""
@@ -177,6 +180,28 @@ class ExtraPart:
     follows: int
     rods: tuple[Rod, ...] = ()
     boxes: tuple[Box, ...] = ()
+    material: str = ""
+    attrs: dict[str, Any] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class SheetPart:
+    """A flat part spanning the whole array (a membrane), made once per plan.
+
+    Attributes
+    ----------
+    name, kind, material : str
+    outline : (k, 2) float, mm
+        Counter-clockwise outline in the flat sheet frame.
+    z0, z1 : float, mm
+    attrs : dict
+    """
+
+    name: str
+    kind: str
+    outline: tuple[tuple[float, float], ...]
+    z0: float
+    z1: float
     material: str = ""
     attrs: dict[str, Any] = field(default_factory=dict)
 

@@ -3,16 +3,20 @@
 The gaps come from the thickness plan (the ``membrane-gap`` method sizes them); this style adds the
 tape strip ``TAPE-C042`` as a separate flat part on the hinge's face (top, or bottom when the hinge
 sits on the bottom face), overlapping each panel by ``overlap_mm``, and optionally a shallow recess
-of the tape's thickness in both panels so the tape lies flush.
+of the tape's thickness in both panels so the tape lies flush. With ``sheet=True`` one membrane
+``MEMBRANE`` over the whole outline of the sheet replaces the strips (a separate flat part; it
+moves with the base panel in folded states, where only its flat shape is faithful).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 from thickpanel.errors import HingeError
+from thickpanel.geometry2d import polygon_area
 
-from .base import Box, ExtraPart, HingeContext, HingeDesign, SideFeatures, positive
+from .base import Box, ExtraPart, HingeContext, HingeDesign, SheetPart, SideFeatures, positive
 
 __all__ = ["TapeHinge"]
 
@@ -28,7 +32,9 @@ class TapeHinge:
     tape_thickness_mm : float
         0.1 mm default (common practice for polyimide tapes, from memory).
     recess : bool
-        Cut a recess of the tape thickness under the tape.
+        Cut a recess of the tape thickness under each strip.
+    sheet : bool
+        One membrane over the whole sheet instead of strips.
     material : str
     """
 
@@ -36,7 +42,26 @@ class TapeHinge:
     tape_thickness_mm: float = 0.1
     recess: bool = False
     material: str = "polyimide-film"
+    sheet: bool = False
     name: str = "tape"
+
+    def plan_parts(self, plan: Any) -> list[SheetPart]:
+        """The membrane sheet over the pattern's outer outline (``sheet=True``), else nothing."""
+        if not self.sheet:
+            return []
+        tt = positive(self.name, "tape_thickness_mm", self.tape_thickness_mm)
+        cp = plan.pattern
+        outer = [f for f in cp.outer_faces]
+        if not outer:
+            raise HingeError("tape hinge sheet: the pattern has no outer boundary")
+        loops = [cp.vertices[cp.face_loop(f)] for f in outer]
+        loop = max(loops, key=lambda lp: abs(polygon_area(lp)))
+        if polygon_area(loop) < 0:
+            loop = loop[::-1]
+        top = min(s.z1 for s in plan.slabs)
+        z0, z1 = top, top + tt  # recesses apply to strips only
+        return [SheetPart("MEMBRANE", "membrane", tuple(map(tuple, loop.tolist())), z0, z1,
+                          self.material, {"tape_thickness": tt})]
 
     def design(self, ctx: HingeContext) -> HingeDesign:
         """The tape part and the optional recesses."""
@@ -64,6 +89,9 @@ class TapeHinge:
             ra = Box(a, b, -g2 - ov, -g2, w0 - za, w1 - za)
             rb = Box(a, b, g2, g2 + ov, w0 - za, w1 - za)
             sides = [SideFeatures(recesses=(ra,)), SideFeatures(recesses=(rb,))]
+        if self.sheet:
+            return HingeDesign(ctx.hinge.crease, self.name, (SideFeatures(), SideFeatures()), (),
+                               {"membrane": True})
         strip = Box(a, b, -g2 - ov, g2 + ov, w0 - za, w1 - za)
         part = ExtraPart(
             f"TAPE-{ctx.cid}", "tape", 0, boxes=(strip,), material=self.material,

@@ -210,3 +210,14 @@ def test_knuckles_on_standoffs_touch_but_never_overlap():
         for barrel in sol[2:]:
             assert BRepExtrema_DistShapeShape(barrel, sol[1]).Value() < 1e-7
     assert common_volume(ps.parts[0].frame_shape, ps.parts[1].frame_shape) < 1e-6
+
+
+def test_tape_sheet_membrane_covers_the_sheet_outline():
+    # two 40 x 30 panels: the sheet outline is the 80 x 30 rectangle; volume = area x thickness
+    ps = build_parts(plain_plan(two_panels(), 3.0, 0.5), hinge_style="tape",
+                     hinge_options={"sheet": True, "tape_thickness_mm": 0.05})
+    assert [p.name for p in ps.parts] == ["P000", "P001", "MEMBRANE"]
+    mem = ps["MEMBRANE"]
+    assert mem.area == pytest.approx(80 * 30) and mem.volume == pytest.approx(80 * 30 * 0.05)
+    assert np.allclose(occ.bbox(mem.frame_shape), [[0, 0, 3.0], [80, 30, 3.05]], atol=1e-6)
+    assert common_volume(mem.frame_shape, ps["P000"].frame_shape) < 1e-6

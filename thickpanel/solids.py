@@ -201,54 +201,51 @@ def _notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatu
     With ``clip`` (standoff blocks, shorter than the hinge) notches are clipped to the edge
     instead of refused.
     """
-    inserts: dict[int, list[tuple[float, int, FloatArray]]] = {}
-    k = len(poly)
+    inserts: dict[int, list[tuple[float, int, tuple[float, float]]]] = {}
+    pts_l = [(float(x), float(y)) for x, y in poly]
+    k = len(pts_l)
     for frame, side, feats, des in groups:
         if not feats.notches:
             continue
-        p2 = np.asarray(frame.origin[:2])
-        d2 = np.asarray(frame.s[:2])
-        m = np.asarray(frame.u[:2]) * (-1.0 if side == 0 else 1.0)
-        off = (poly - p2) @ m
-        nxt = np.roll(np.arange(k), -1)
-        i = int(np.argmin(np.maximum(np.abs(off), np.abs(off[nxt]))))
-        a, b = poly[i], poly[nxt[i]]
-        sa, sb = float((a - p2) @ d2), float((b - p2) @ d2)
+        px, py = frame.origin[0], frame.origin[1]
+        dx, dy = frame.s[0], frame.s[1]
+        sg = -1.0 if side == 0 else 1.0
+        mx, my = sg * frame.u[0], sg * frame.u[1]
+        off = [(x - px) * mx + (y - py) * my for x, y in pts_l]
+        i = min(range(k), key=lambda j: max(abs(off[j]), abs(off[(j + 1) % k])))
+        (ax, ay), (bx, by) = pts_l[i], pts_l[(i + 1) % k]
+        sa = (ax - px) * dx + (ay - py) * dy
+        sb = (bx - px) * dx + (by - py) * dy
         lo, hi = min(sa, sb), max(sa, sb)
         seq = inserts.setdefault(i, [])
         for n in feats.notches:
+            s0, s1 = n.s0, n.s1
             if clip:
-                n = type(n)(max(n.s0, lo), min(n.s1, hi), n.depth)
-                if n.s1 - n.s0 <= tol.length:
+                s0, s1 = max(s0, lo), min(s1, hi)
+                if s1 - s0 <= tol.length:
                     continue
-            if n.s0 < lo - tol.length or n.s1 > hi + tol.length:
+            if s0 < lo - tol.length or s1 > hi + tol.length:
                 raise HingeError(
-                    f"hinge notch {n.s0:.3f}..{n.s1:.3f} mm of {cid(des.crease)} runs past the edge "
+                    f"hinge notch {s0:.3f}..{s1:.3f} mm of {cid(des.crease)} runs past the edge "
                     f"of {who} ({lo:.3f}..{hi:.3f} mm along the hinge); knuckles are longer than "
                     f"the edge"
                 )
-            for s_edge in (n.s0, n.s1):
-                t = (s_edge - sa) / (sb - sa)
-                e_pt = a + t * (b - a)
-                e_off = float((e_pt - p2) @ m)
-                if n.depth <= e_off + tol.length:
-                    break
-            else:
-                pts = []
-                for s_at in (n.s0, n.s1):
-                    t = (s_at - sa) / (sb - sa)
-                    e_pt = a + t * (b - a)
-                    i_pt = p2 + s_at * d2 + n.depth * m
-                    pts.append((t, e_pt, i_pt))
-                (t0, e0, i0), (t1, e1, i1) = pts
-                if sb < sa:
-                    (t0, e0, i0), (t1, e1, i1) = (t1, e1, i1), (t0, e0, i0)
-                seq.extend([(t0, 0, e0), (t0, 1, i0), (t0, 2, i1), (t0, 3, e1)])  # keyed by notch start
+            ends = []
+            for s_at in (s0, s1):
+                t = (s_at - sa) / (sb - sa)
+                ex, ey = ax + t * (bx - ax), ay + t * (by - ay)
+                ends.append((t, (ex, ey), (px + s_at * dx + n.depth * mx,
+                                           py + s_at * dy + n.depth * my),
+                             (ex - px) * mx + (ey - py) * my))
+            if any(n.depth <= e_off + tol.length for *_, e_off in ends):
+                continue  # the edge is already behind this depth: nothing to cut
+            (t0, e0, i0, _), (t1, e1, i1, _) = ends if sb >= sa else ends[::-1]
+            seq.extend([(t0, 0, e0), (t0, 1, i0), (t0, 2, i1), (t0, 3, e1)])  # keyed by start
     if not inserts:
         return poly
-    out: list[FloatArray] = []
+    out: list[tuple[float, float]] = []
     for j in range(k):
-        out.append(poly[j])
+        out.append(pts_l[j])
         for _, _, pt in sorted(inserts.get(j, []), key=lambda x: (x[0], x[1])):
             out.append(pt)
     res = _simplify(np.array(out), tol)
@@ -265,7 +262,7 @@ def _self_intersects(poly: FloatArray) -> bool:
     """True when two non-adjacent edges of a closed polygon cross or touch (vectorised)."""
     k = len(poly)
     a = poly
-    b = np.roll(poly, -1, axis=0)
+    b = np.concatenate([poly[1:], poly[:1]])
 
     def orient(p: FloatArray, q: FloatArray, r: FloatArray) -> FloatArray:
         return np.sign((q[..., 0] - p[..., 0]) * (r[..., 1] - p[..., 1])
@@ -283,20 +280,20 @@ def _simplify(poly: FloatArray, tol: Tolerances) -> FloatArray:
     """Drop repeated points, straight-through points and zero-width spikes (collinear)."""
     p = np.asarray(poly, dtype=float)
     while len(p) > 3:
-        step = p - np.roll(p, 1, axis=0)
-        keep = np.hypot(step[:, 0], step[:, 1]) > tol.merge
+        prev = np.concatenate([p[-1:], p[:-1]])
+        u = p - prev
+        keep = np.hypot(u[:, 0], u[:, 1]) > tol.merge
         if not keep.all():
             p = p[keep]
             continue
-        u = p - np.roll(p, 1, axis=0)
-        v = np.roll(p, -1, axis=0) - p
+        v = np.concatenate([u[1:], u[:1]])
         cross = u[:, 0] * v[:, 1] - u[:, 1] * v[:, 0]
         scale = np.maximum(np.hypot(u[:, 0], u[:, 1]), np.hypot(v[:, 0], v[:, 1]))
         flat = np.abs(cross) <= tol.length * scale
         if not flat.any():
             break
         # remove flagged points that do not follow another flagged point, then look again
-        drop = flat & ~np.roll(flat, 1)
+        drop = flat & ~np.concatenate([flat[-1:], flat[:-1]])
         if not drop.any():
             drop = flat.copy()
             drop[1:] = False
@@ -401,6 +398,9 @@ def build_parts(
         fr = frames[h.crease]
         for ex in des.extras:
             parts.append(_extra_part(ex, fr, h.panels[ex.follows], cache, poses))
+    sheet_fn = getattr(style, "plan_parts", None)
+    for sp in (sheet_fn(plan) if callable(sheet_fn) else []):
+        parts.append(_sheet_part(sp, plan, state, poses))
     return PartSet(parts, plan, getattr(style, "name", str(hinge_style)), tuple(designs), state,
                    tol)
 
@@ -564,3 +564,17 @@ def _extra_part(ex: ExtraPart, fr: HingeFrame, panel: int, cache: _Cache,
         float(polygon_area(outline)) if outline is not None else 0.0, outline, [], [], 0,
         (diameter,) if diameter else (), dict(ex.attrs), pieces,
     )
+
+
+def _sheet_part(sp: Any, plan: ThickPlan, state: FoldState | None,
+                poses: FloatArray | None) -> Part:
+    """A membrane over the whole sheet; it follows the base panel of the state."""
+    outline = np.asarray(sp.outline, dtype=float)
+    body = occ.prism(outline, sp.z0, sp.z1)
+    if not occ.check_shape(body):
+        raise GeometryError(f"{sp.name}: membrane solid is invalid (BRepCheck)")
+    panel = state.base_panel if state is not None else plan.slabs[0].panel
+    shape = body if poses is None else occ.moved(body, poses[panel])
+    return Part(sp.name, sp.kind, shape, body, sp.material or DEFAULT_MATERIAL, occ.volume(body),
+                panel, sp.z1 - sp.z0, float(polygon_area(outline)), outline, [], [], 0, (),
+                dict(sp.attrs), [(("unique", sp.name), body, np.eye(4))])

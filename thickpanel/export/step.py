@@ -91,8 +91,10 @@ def step_bytes(
     Returns
     -------
     bytes
-        Structure: top assembly ``name`` -> component per part (named like the part) -> the
-        part's sub-assembly (same name) -> one component per solid.
+        Structure: top assembly ``name`` -> one component per part, named like the part. A part
+        of several solids refers to its own sub-assembly (same name) with one component per
+        solid; a part of one solid (a pin, a plain panel) refers to that solid directly, which
+        may be a prototype shared with equal parts (named after its kind, e.g. ``rod-7``).
     """
     _setup(schema)
     doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
@@ -101,18 +103,28 @@ def step_bytes(
     TDataStd_Name.Set_s(top, TCollection_ExtendedString(name))
     protos: dict[Any, Any] = {}
     eye = np.eye(4)
+    shared = len(items) > 1
     for part_name, pieces, pose in items:
-        asm = tool.NewShape()
-        TDataStd_Name.Set_s(asm, TCollection_ExtendedString(part_name))
+        labels = []
         for j, (key, proto, m) in enumerate(pieces):
             lab = protos.get(key)
             if lab is None:
                 lab = tool.AddShape(proto, False)
-                label = f"{part_name}-{j}" if key[0] == "unique" else f"{key[0]}-{len(protos)}"
+                unique = key[0] == "unique" or len(pieces) == 1 and not shared
+                label = f"{part_name}-{j}" if unique else f"{key[0]}-{len(protos)}"
                 TDataStd_Name.Set_s(lab, TCollection_ExtendedString(label))
                 protos[key] = lab
-            tool.AddComponent(asm, lab, occ.location(m))
-        comp = tool.AddComponent(top, asm, occ.location(eye if pose is None else pose))
+            labels.append((lab, m))
+        place = eye if pose is None else np.asarray(pose, dtype=float)
+        if len(labels) == 1:  # one solid: the part's component refers to it directly
+            lab, m = labels[0]
+            comp = tool.AddComponent(top, lab, occ.location(place @ m))
+        else:
+            asm = tool.NewShape()
+            TDataStd_Name.Set_s(asm, TCollection_ExtendedString(part_name))
+            for lab, m in labels:
+                tool.AddComponent(asm, lab, occ.location(m))
+            comp = tool.AddComponent(top, asm, occ.location(place))
         TDataStd_Name.Set_s(comp, TCollection_ExtendedString(part_name))
     tool.UpdateAssemblies()
     writer = STEPCAFControl_Writer()
