@@ -28,7 +28,7 @@ from typing import Any
 import numpy as np
 
 from .design import Design, suggest
-from .errors import DesignFileError, HingeError, ThickpanelError
+from .errors import DesignFileError, ExportError, HingeError, PatternError, ThickpanelError
 
 __all__ = ["BuildResult", "run_pipeline", "run_check", "run_fold", "run_build", "run_report",
            "default_out_dir", "Progress"]
@@ -142,6 +142,14 @@ class _Run:
         t0 = time.perf_counter()
         try:
             yield rec
+        except (DesignFileError, ExportError, PatternError):
+            raise  # bad input: exit code 2
+        except ThickpanelError as exc:  # the stage refused the design: a failed check, later stages blocked
+            rec["status"] = "failed"
+            rec["note"] = str(exc)
+            self.res.check(name, "fail", f"{type(exc).__name__}: {exc}")
+            if name in ("pattern", "method", "solids"):  # the stages later ones build on
+                self.blocked = f"{name} failed"
         finally:
             rec["seconds"] = round(time.perf_counter() - t0, 3)
             if self.progress:
@@ -513,6 +521,12 @@ def _solids(run: _Run) -> None:
                        material=d.panels.material or None)
         except HingeError as exc:
             raise DesignFileError(f"[hinge] style = {d.hinge.style!r}: {exc}") from exc
+        except ThickpanelError as exc:  # the kernel could not make a valid part: a failed check
+            rec["status"] = "failed"
+            rec["note"] = str(exc)
+            res.check("solids valid", "fail", str(exc))
+            run.blocked = "no valid solids"
+            return
         res.parts = parts
         plist = list(parts.parts)
         rec["note"] = f"{len(plist)} parts"
