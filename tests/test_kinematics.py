@@ -73,10 +73,18 @@ def test_bad_driver_border_crease(miura):
         fold_path(miura, driver="C999")
 
 
-@pytest.mark.parametrize("target", [np.pi, 4.0, 0.0, -0.5])
+@pytest.mark.parametrize("target", [np.pi + 1e-9, 4.0, 0.0, -0.5])
 def test_target_beyond_reachable_range(miura, target):
-    with pytest.raises(FoldError, match="reachable range of rigid panels, 0 < target < pi"):
+    with pytest.raises(FoldError, match="reachable range of rigid panels, 0 < target <= pi"):
         fold_path(miura, target=target)
+
+
+def test_full_flat_fold(miura):
+    # Miura-ori folds completely flat (Schenk & Guest 2013): every folding crease at +-pi.
+    path = fold_path(miura, target=np.pi, n_states=5)
+    last = path.states[-1]
+    assert path.stop_reason == "target" and last.closure_error < 1e-9
+    assert np.allclose(np.abs(last.angles[miura.folding]), np.pi, atol=1e-9)
 
 
 @pytest.mark.parametrize("t", [-0.1, 1.5, float("nan")])

@@ -82,6 +82,7 @@ class _Solve:
     ok: bool
     iters: int
     residual: float
+    factor: Any = None  # last factorisation used (reused for the next tangent)
 
 
 class _Factor:
@@ -149,9 +150,9 @@ def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, fact
     chord = fac is not None
     for it in range(_MAX_NEWTON):
         if not np.isfinite(res):
-            return _Solve(x, False, it, res)
+            return _Solve(x, False, it, res, fac)
         if res <= goal:
-            return _Solve(x, True, it, res)
+            return _Solve(x, True, it, res, fac)
         if fac is None or not chord:
             _, J = model.residual_jacobian(x)
             assert J is not None
@@ -160,7 +161,7 @@ def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, fact
         for _ in range(8):
             dx = fac.solve(-r)
             if dx is None:
-                return _Solve(x, False, it, res)
+                return _Solve(x, False, it, res, fac)
             xt = x.copy()
             xt[fac.free] += dx
             rt, _ = model.residual_jacobian(xt, jac=False)
@@ -169,14 +170,14 @@ def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, fact
                 break
             fac.refactor(fac.damping * 100)
         else:
-            return _Solve(x, False, it, res)
+            return _Solve(x, False, it, res, fac)
         slow = slow + 1 if nt > 0.9 * norm else 0
         chord = nt < 0.25 * norm  # fast enough: keep this factorisation for the next step
         x, r, norm = xt, rt, nt
         res = float(np.abs(r).max())
         if slow >= 3:
-            return _Solve(x, res <= goal, it, res)
-    return _Solve(x, res <= goal, _MAX_NEWTON, res)
+            return _Solve(x, res <= goal, it, res, fac)
+    return _Solve(x, res <= goal, _MAX_NEWTON, res, fac)
 
 
 def _lsq(A: sp.csr_matrix, b: FloatArray) -> FloatArray | None:
@@ -206,6 +207,7 @@ class _Tracker:
     closed: Any  # closed-form degree-4 parameterisation or None
     x: FloatArray
     level: float  # current driven magnitude, rad
+    factor: Any = None  # last corrector factorisation (near the current point)
 
     def driver_of(self, x: FloatArray) -> int:
         if self.driver is not None:
@@ -244,9 +246,12 @@ class _Tracker:
             if np.abs(self.x).max() == 0:
                 xp = self.direction * (new_level / abs(self.direction[k]))
             else:
-                _, J = self.model.residual_jacobian(self.x)
-                assert J is not None
-                factor = _Factor(J, k)
+                if self.factor is not None and self.factor.fixed == k:
+                    factor = self.factor  # factorised during the last correction, next to self.x
+                else:
+                    _, J = self.model.residual_jacobian(self.x)
+                    assert J is not None
+                    factor = _Factor(J, k)
                 tan = factor.tangent()
                 if tan is None:
                     return None
@@ -265,6 +270,7 @@ class _Tracker:
                     return None
         if not self._signs_hold(got.x, self._previous()):
             return None
+        self.factor = got.factor
         return got.x, got.iters
 
     def _previous(self) -> FloatArray:
@@ -374,7 +380,8 @@ def fold_path(
     target : float, rad, optional
         Largest fold magnitude at t = 1 (of the driver crease when ``driver`` is given). Default:
         the largest of the pattern's target angles, else :data:`DEFAULT_FULL_FOLD`. Must lie in
-        (0, pi).
+        (0, pi]; the general solver usually stops (``lock``) just short of a full flat fold, where
+        the Jacobian is singular, while the closed-form degree-4 branch reaches pi.
     n_states : int
         Number of sampled states, evenly spaced in the fold fraction t from 0 to 1 (>= 2).
     driver : int or str, optional
@@ -398,7 +405,7 @@ def fold_path(
     Raises
     ------
     FoldError
-        For a target outside (0, pi), a non-folding driver crease, fewer than 2 states, a pattern
+        For a target outside (0, pi], a non-folding driver crease, fewer than 2 states, a pattern
         with nothing to fold or disconnected panels, or a pattern that cannot leave the flat state
         rigidly (reachable range 0..0 rad; see :func:`joint_slack`).
     """
@@ -412,10 +419,10 @@ def fold_path(
         )
     target = float(target)
     drv_name = "t" if k_drv is None else cid(int(model.var_crease[k_drv]))
-    if not (0.0 < target < np.pi):
+    if not (0.0 < target <= np.pi):
         raise FoldError(
             f"target fold {target!r} rad ({np.rad2deg(target):.6g} deg) of driver {drv_name} is outside the "
-            "reachable range of rigid panels, 0 < target < pi rad (0..180 deg exclusive)"
+            "reachable range of rigid panels, 0 < target <= pi rad (0 exclusive to 180 deg)"
         )
     if int(n_states) < 2:
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (flat and target states)")

@@ -41,6 +41,8 @@ if TYPE_CHECKING:
 
 __all__ = ["RigidVerdict", "rigid_foldability", "ClosedForm", "closed_form_path", "locked_where", "nullity"]
 
+_DENSE_MAX = 300  # unknowns up to which the rank comes from a dense SVD (sparse eigensolver above)
+
 PROBE_FOLD: float = float(np.deg2rad(10.0))
 """Largest fold (rad) the verdict asks a pattern to reach rigidly: far enough off flat that the
 second-order locking of a non-rigid pattern shows (residual ~ rho^2 >> tol.closure)."""
@@ -250,7 +252,7 @@ def nullity(J: sp.csr_matrix, *, rel: float = 1e-7) -> int:
         return 0
     if J.shape[0] == 0:
         return n
-    if n <= 1500:
+    if n <= _DENSE_MAX:
         s = np.linalg.svd(J.toarray(), compute_uv=False)
         s = np.concatenate([s, np.zeros(max(0, n - len(s)))])
         return int(np.count_nonzero(s <= rel * max(float(s.max()), 1e-300)))
