@@ -191,3 +191,22 @@ def test_knuckle_slots_interleave_on_shared_stowed_lines():
         assert len(ivs) == 4
         assert all(ivs[k][1] <= ivs[k + 1][0] + 1e-9 for k in range(3))
         assert ivs[0][0] == pytest.approx(0.0) and ivs[-1][1] == pytest.approx(40.0)
+
+
+def test_offset_panel_standoffs_inside_usable_length_and_buildable():
+    # Oracle: every standoff lies within its hinge's usable length and within the vertex
+    # clearances, so each one is a non-empty convex piece.
+    from thickpanel.clearance import plan_pieces
+
+    cp = miura(a=60.0, b=40.0, nx=3, ny=3)
+    path = miura_path(cp, 60.0, math.radians(90), 8)
+    plan = make_plan(cp, "offset-panel", thickness=0.3, target_fold=math.pi, path=path)
+    assert plan.meta["vertex_radii"]  # flat target: vertex clearances on
+    pieces = plan_pieces(plan)
+    assert len(pieces) == cp.n_panels + sum(len(s.standoffs) for s in plan.slabs)
+    for slab in plan.slabs:
+        for so in slab.standoffs:
+            h = plan.hinge_for(so.crease)
+            v0 = cp.vertices[cp.creases[so.crease, 0]]
+            along = (np.asarray(so.polygon) - v0) @ cp.crease_directions[so.crease]
+            assert along.min() >= h.usable[0] - 1e-9 and along.max() <= h.usable[1] + 1e-9

@@ -8,7 +8,7 @@ its normal to its own layer of the folded stack; standoff blocks join panels to 
 Here the layer order comes from the fold state at the end of the path (:mod:`.layers`); the one free
 parameter, the height of the reference surface within the stack, is chosen to minimise the longest
 standoff. Standoffs are split into knuckle-like slots along each hinge; hinges whose lines coincide
-in the stowed state share the line with disjoint slots. Whenever standoffs are needed every interior
+in the stowed state share the line with disjoint slots. For flat-folding targets every interior
 vertex gets a clearance cut (no vertex whose panels keep full thickness to the vertex folds
 completely flat).
 
@@ -26,6 +26,7 @@ import numpy as np
 
 from ..collide import sweep_pairs
 from ..errors import ThicknessError
+from ..geometry2d import polygon_area
 from ..pattern import cid
 from ..poses import fold_state_from_angles
 from ..tolerances import DEFAULT_TOL, Tolerances
@@ -48,6 +49,8 @@ if TYPE_CHECKING:
     from ..poses import FoldPath
 
 NAME = "offset-panel"
+FLAT_FRACTION = 0.97
+"""Targets at or above this fraction of pi count as flat-folding designs (vertex clearances on)."""
 
 
 def reference_height(base: np.ndarray, t: np.ndarray) -> tuple[float, float]:
@@ -61,6 +64,22 @@ def reference_height(base: np.ndarray, t: np.ndarray) -> tuple[float, float]:
     lo = float(np.min(base + t))
     h = -(hi + lo) / 2.0
     return h, max(0.0, (hi - lo) / 2.0)
+
+
+def _clip_half_plane(poly: np.ndarray, n: np.ndarray, off: float) -> np.ndarray:
+    """Part of a convex polygon with ``n . x <= off`` (Sutherland & Hodgman 1974), (k, 2)."""
+    if len(poly) == 0:
+        return poly
+    side = off - poly @ n
+    out = []
+    for k in range(len(poly)):
+        p, q = poly[k], poly[(k + 1) % len(poly)]
+        sp, sq = side[k], side[(k + 1) % len(poly)]
+        if sp >= 0:
+            out.append(p)
+        if (sp >= 0) != (sq >= 0):
+            out.append(p + (sp / (sp - sq)) * (q - p))
+    return np.array(out).reshape(-1, 2)
 
 
 def knuckle_slots(
@@ -185,7 +204,8 @@ def build(
     standoff_width : float, mm, optional
         Width of each standoff strip into its panel; default the panel thickness.
     vertex_clearance : bool, optional
-        Cut corners at interior vertices; default on whenever the panels need standoffs.
+        Cut corners at interior vertices; default on for flat-folding targets
+        (``target_fold >= FLAT_FRACTION * pi``) whose panels need standoffs.
     order : LayerOrder, optional
         A precomputed layer order.
     knuckles : int
@@ -220,9 +240,10 @@ def build(
         state_for_order = state
     shift, longest = reference_height(order.base, t)
     if vertex_clearance is None:
-        # standoffs of different hinges meet at a vertex as soon as the fold starts unless the
-        # corners are cleared; a single-layer sheet needs none
-        vertex_clearance = longest > tol.length
+        # a flat-folding design needs them: no vertex whose panels keep full thickness to the
+        # vertex folds completely flat (for partial folds, ask with vertex_clearance=True when the
+        # sweep shows standoffs meeting at vertices)
+        vertex_clearance = target >= math.pi * FLAT_FRACTION and longest > tol.length
     radii: dict[int, float] = {}
     if vertex_clearance:
         for v in pattern.interior_vertices:
@@ -246,6 +267,10 @@ def build(
     n_k = int(knuckles)
     if n_k < 1:
         raise ThicknessError(f"knuckles = {knuckles!r} is out of range; allowed: a whole number >= 1")
+    for c in fc:
+        for p in (int(cp[c, 0]), int(cp[c, 1])):
+            inset[(p, c)] = float(standoff_width) if standoff_width is not None else float(t[p])
+    inset_polys = [inset_polygon(pattern, p, inset, tol=tol) for p in range(pattern.n_panels)]
     clears: dict[int, tuple[float, float]] = {}
     for c in fc:
         a_, b_ = pattern.creases[c]
@@ -261,6 +286,14 @@ def build(
                 clear0 = max(clear0, need)
             else:
                 clear1 = max(clear1, need)
+        # the slabs' own edges along this hinge end where the neighbouring hinges' insets begin
+        for p in (int(cp[c, 0]), int(cp[c, 1])):
+            k = list(pattern.panels[p].edges).index(c)
+            e0, e1 = inset_polys[p][k], inset_polys[p][(k + 1) % len(inset_polys[p])]
+            u_c = (v[b_] - v[a_]) / ln
+            s_a, s_b = sorted((float((e0 - v[a_]) @ u_c), float((e1 - v[a_]) @ u_c)))
+            clear0 = max(clear0, s_a)
+            clear1 = max(clear1, ln - s_b)
         if clear0 + clear1 >= ln:
             raise ThicknessError(
                 f"vertex clearances ({clear0:.3g} + {clear1:.3g} mm) leave no hinge length on crease {cid(c)} "
@@ -270,6 +303,7 @@ def build(
     stowed = path.states[-1] if path is not None and len(path.states) else state_for_order
     gap = float(stack_tol) if stack_tol is not None else float(np.max(t))
     slots = knuckle_slots(pattern, stowed, fc, clears, knuckles=n_k, stack_tol=gap, tol=tol)
+    corner_cuts = [vertex_cuts(pattern, p, radii, tol=tol) if radii else [] for p in range(pattern.n_panels)]
     for c in fc:
         a_, b_ = pattern.creases[c]
         pa, pb = v[a_], v[b_]
@@ -277,8 +311,7 @@ def build(
         clear0, clear1 = clears[c]
         for side, p in enumerate((int(cp[c, 0]), int(cp[c, 1]))):
             z0, z1 = z_of[p]
-            w = float(standoff_width) if standoff_width is not None else float(t[p])
-            inset[(p, c)] = w
+            w = inset[(p, c)]
             inward = np.array([-u[1], u[0]]) * (1.0 if side == 0 else -1.0)
             for k_side, lo_s, hi_s in slots[c]:
                 if k_side != side:
@@ -291,7 +324,9 @@ def build(
                     qa = qa[::-1]
                 if pattern.panels[p].convex:  # keep the strip inside its panel at acute corners
                     qa = clip_convex(qa, pattern.panel_polygon(p))
-                if len(qa) < 3:
+                for cut in corner_cuts[p]:  # and outside the vertex clearances
+                    qa = _clip_half_plane(qa, np.array(cut.normal[:2]), cut.offset)
+                if len(qa) < 3 or abs(polygon_area(qa)) <= tol.area:
                     continue
                 standoffs[p].append(
                     Standoff(c, tuple((float(x), float(y)) for x, y in qa), float(min(z0, 0.0)), float(max(z1, 0.0)))
@@ -302,8 +337,8 @@ def build(
             make_hinge(pattern, c, z=0.0, face="reference", gap=0.0, fold_range=rng, clear=(clear0, clear1))
         )
     for p in range(pattern.n_panels):
-        poly = tuple((float(x), float(y)) for x, y in inset_polygon(pattern, p, inset, tol=tol))
-        cuts = tuple(vertex_cuts(pattern, p, radii, tol=tol)) if radii else ()
+        poly = tuple((float(x), float(y)) for x, y in inset_polys[p])
+        cuts = tuple(corner_cuts[p])
         slabs.append(Slab(p, poly, z_of[p][0], z_of[p][1], cuts=cuts, standoffs=tuple(standoffs[p])))
     return ThickPlan(
         pattern, NAME, tuple(slabs), tuple(hinges), target,
