@@ -187,7 +187,7 @@ def test_design_failing_its_checks_exits_1(tmp_path):
     # (Hull, *Origametry*, 2020; Evans et al. 2015, R. Soc. Open Sci. 2:150067).
     text = GOOD.split("[layout]")[0] + (
         '[layout]\nfamily = "square-twist"\nside = 40.0\ntwist_deg = 30.0\n'
-        "[panels]\nthickness = 1.0\n[checks]\nrequire_rigid = true\n"
+        "[panels]\nthickness = 1.0\n[fold]\ntarget_deg = 60.0\n[checks]\nrequire_rigid = true\n"
     )
     r = run("check", str(write(tmp_path, text)), "--json")
     assert r.returncode == 1, r.stderr
@@ -215,7 +215,7 @@ def test_locked_membrane_design_warns_and_sizes_slack(tmp_path):
     # rigidly foldable) still gets a plan; the fold and the clearance are reported as unproven and
     # the hinge play the least-squares fold needs is sized.
     text = ('[layout]\nfamily = "square-twist"\nside = 40.0\ntwist_deg = 30.0\n[panels]\nthickness = 1.0\n'
-            '[method]\nname = "membrane-gap"\n[fold]\ntarget_deg = 120.0\nstates = 10\n')
+            '[method]\nname = "membrane-gap"\n[fold]\ntarget_deg = 60.0\nstates = 10\n')
     r = run("check", str(write(tmp_path, text)), "--json")
     assert r.returncode == 0, r.stderr
     s = strict_json(r.stdout)

@@ -74,7 +74,7 @@ def layouts_markdown() -> str:
         for pn, p in inspect.signature(fn).parameters.items():
             if pn in ("tol", "name") or p.kind in (p.VAR_KEYWORD, p.VAR_POSITIONAL):
                 continue
-            parts.append(f"`{pn}`" + ("" if p.default is p.empty else f" = {_toml_value(p.default)}"))
+            parts.append(f"`{pn}`" + (" (required)" if p.default is p.empty else f" = {_toml_value(p.default)}"))
         lines[-1] += " " + (", ".join(parts) or "no parameters")
         doc = inspect.getdoc(fn)
         if doc:
