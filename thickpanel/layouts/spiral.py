@@ -227,7 +227,7 @@ def _resolve(
         if not given or not len(curve):
             raise PatternError(
                 f"{spec.layout} with {spec.labels[0]}/{spec.labels[1]} quadrilateral cells and {n} arms has no "
-                f"flat-foldable lattice for {names}; use triangulate='short' or 'long', or flat_foldable=False"
+                f"flat-foldable lattice (given: {names}); use triangulate='short' or 'long', or flat_foldable=False"
             )
         nm, v, _ = given[0]
         vals = np.array([_param_value(nm, h, d, spec, n, rings, outer) for h, d in curve])
