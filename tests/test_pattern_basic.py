@@ -32,3 +32,13 @@ def test_grid_faces_and_euler():
 def test_crossing_is_reported_with_ids():
     with pytest.raises(PatternError, match="C000 and C001 cross"):
         CreasePattern([[0, 0], [2, 2], [0, 2], [2, 0]], [[0, 1], [2, 3]], ["valley"] * 2)
+
+
+def test_seam_equality_treats_unset_angle_as_equal():
+    from thickpanel import Seam
+
+    # NaN marks "no target angle given"; two such seams are the same seam (round trips rely on it)
+    assert Seam(3, 7) == Seam(3, 7)
+    assert hash(Seam(3, 7)) == hash(Seam(3, 7))
+    assert Seam(3, 7) != Seam(3, 7, target_angle=0.5)
+    assert Seam(3, 7, "mountain") != Seam(3, 7, "valley")

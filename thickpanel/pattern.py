@@ -85,6 +85,19 @@ class Seam:
     kind: str = "valley"
     target_angle: float = float("nan")
 
+    def _key(self) -> tuple[int, int, str, float | None]:
+        # NaN means "not given": two seams that both leave it unset are equal
+        ta = None if self.target_angle != self.target_angle else float(self.target_angle)
+        return (int(self.a), int(self.b), self.kind, ta)
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Seam):
+            return NotImplemented
+        return self._key() == other._key()
+
+    def __hash__(self) -> int:
+        return hash(self._key())
+
 
 @dataclass(frozen=True)
 class Panel:
