@@ -225,3 +225,31 @@ def test_locked_membrane_design_warns_and_sizes_slack(tmp_path):
     assert verdicts["clearance over the fold"] == "warn"
     assert verdicts["thickness method"] == "pass"
     assert s["metrics"]["slack_max_play_mm"] > 0
+
+
+class _Stream:
+    def __init__(self, tty: bool) -> None:
+        self.tty = tty
+        self.text = ""
+
+    def isatty(self) -> bool:
+        return self.tty
+
+    def write(self, s: str) -> int:
+        self.text += s
+        return len(s)
+
+    def flush(self) -> None:
+        pass
+
+
+def test_progress_bar_only_on_a_terminal():
+    # POSIX isatty(3): progress goes to a terminal only; pipes and files stay clean.
+    from thickpanel.cli import TerminalProgress
+
+    for tty, quiet in ((True, False), (False, False), (True, True)):
+        st = _Stream(tty)
+        bar = TerminalProgress(st, enabled=not quiet)  # type: ignore[arg-type]
+        bar("fold path", 0, 1)
+        bar("fold path", 1, 1)
+        assert ("fold path" in st.text) == (tty and not quiet)

@@ -97,7 +97,9 @@ def _jsonable(x: Any) -> Any:
     if isinstance(x, list | tuple):
         return [_jsonable(v) for v in x]
     if isinstance(x, np.generic):
-        return x.item()
+        return _jsonable(x.item())
+    if isinstance(x, np.ndarray):
+        return _jsonable(x.tolist())
     if isinstance(x, float) and not math.isfinite(x):
         return None
     if isinstance(x, Path):

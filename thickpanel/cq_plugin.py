@@ -1,10 +1,11 @@
 """cadquery entry points: drop a thickpanel array into your own cadquery model.
 
->>> import cadquery as cq                                   # doctest: +SKIP
->>> from thickpanel import cq_plugin
->>> arr = cq_plugin.model("examples/miura-reference.toml")  # solve once ...
->>> half = arr.assembly(0.5)                                # ... place at any fold fraction
->>> stowed = cq_plugin.compound("examples/miura-reference.toml", t=1.0)
+Usage (in the repository folder)::
+
+    from thickpanel import cq_plugin
+    arr = cq_plugin.model("examples/miura-reference.toml")   # solve once ...
+    half = arr.assembly(0.5)                                 # ... place at any fold fraction
+    stowed = cq_plugin.compound("examples/miura-reference.toml", t=1.0)
 
 Nothing is added to ``cq.Workplane`` on import. Call :func:`register` to get the fluent method
 ``Workplane.thickpanel_array(design, t=1.0)``, which places the array (as one compound) at every
