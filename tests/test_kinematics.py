@@ -133,3 +133,34 @@ def test_tolerance_changes_acceptance(miura):
 
     with pytest.raises(FoldError):
         fold_path(miura, target=1.0, n_states=3, tol=Tolerances(closure=1e-300))
+
+
+def _star(angles_deg, kinds, r=50.0):
+    th = np.deg2rad(np.asarray(angles_deg, dtype=float))
+    n = len(th)
+    v = [[0.0, 0.0]] + [[r * np.cos(t), r * np.sin(t)] for t in th]
+    e = [[0, k + 1] for k in range(n)] + [[k + 1, (k + 1) % n + 1] for k in range(n)]
+    return CreasePattern(v, e, list(kinds) + ["border"] * n)
+
+
+def test_degree6_vertex_has_three_dof_general_solver():
+    # A single interior vertex of degree n folds with n - 3 degrees of freedom off flat
+    # (Belcastro & Hull 2002, Linear Algebra Appl. 348; Tachi 2009): 3 for degree 6. The closed
+    # form does not apply (degree 6), so this exercises the general predictor-corrector.
+    cp = _star([0, 55, 110, 180, 235, 290], ["valley", "valley", "mountain", "valley", "valley", "mountain"])
+    v = rigid_foldability(cp)
+    assert (v.kind, v.dof) == ("rigid", 3)
+    path = fold_path(cp, target=np.deg2rad(120.0), n_states=9)
+    assert not path.meta["closed_form"]
+    assert max(s.closure_error for s in path.states) < 1e-9
+    mid = path.at(0.55)
+    assert mid.closure_error < 1e-9 and np.abs(mid.angles).max() == pytest.approx(0.55 * np.deg2rad(120.0))
+
+
+def test_non_flat_foldable_degree4_vertex_has_one_dof():
+    # A generic (not flat-foldable) developable degree-4 vertex is a spherical 4-bar linkage:
+    # one degree of freedom (Belcastro & Hull 2002; Tachi 2009).
+    cp = _star([0, 70, 160, 250], ["valley", "mountain", "valley", "valley"])
+    v = rigid_foldability(cp)
+    assert (v.kind, v.dof) == ("rigid", 1)
+    assert "general path following" in v.reason

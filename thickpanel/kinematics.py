@@ -69,6 +69,7 @@ every pattern becomes singular."""
 _MAX_NEWTON = 16  # corrector iterations per step before the step is halved
 _MIN_STEP = 1e-3  # rad: smallest driver step before the path is declared locked
 _FIRST_STEP = float(np.deg2rad(2.0))  # rad: first trial step off flat
+_START_TRIES = 6  # start directions tried off flat by the general solver before it reports a lock
 _SIGN_SLACK = 1e3  # x tol.angle: a crease this far against its assignment is on another branch
 _DAMPING = 1e-10  # relative Levenberg-Marquardt damping (picks the minimum-norm correction)
 
@@ -208,6 +209,7 @@ class _Tracker:
     x: FloatArray
     level: float  # current driven magnitude, rad
     factor: Any = None  # last corrector factorisation (near the current point)
+    multi: bool | None = None  # several degrees of freedom (decided at the first state off flat)
 
     def driver_of(self, x: FloatArray) -> int:
         if self.driver is not None:
@@ -252,7 +254,7 @@ class _Tracker:
                     _, J = self.model.residual_jacobian(self.x)
                     assert J is not None
                     factor = _Factor(J, k)
-                tan = factor.tangent()
+                tan = self._projected_tangent() if self._is_multi() else factor.tangent()
                 if tan is None:
                     return None
                 xp = self.x + tan * (s * new_level - self.x[k])
@@ -273,6 +275,36 @@ class _Tracker:
         self.factor = got.factor
         return got.x, got.iters
 
+    def _is_multi(self) -> bool:
+        if self.multi is None:
+            from .verdicts import nullity
+
+            _, J = self.model.residual_jacobian(self.x)
+            assert J is not None
+            self.multi = nullity(J) > 1
+        return self.multi
+
+    def _projected_tangent(self) -> FloatArray | None:
+        """With several degrees of freedom: the start direction projected on the null space.
+
+        The motion closest to folding every crease in its assigned sense and proportion, which
+        keeps creases from running through zero the way a minimum-norm completion can.
+        """
+        _, J = self.model.residual_jacobian(self.x)
+        assert J is not None
+        d = self.direction
+        N = (J.T @ J).tocsc()
+        scale = float(N.diagonal().max()) or 1.0
+        try:
+            y = spla.splu(N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale)).solve(N @ d)
+        except RuntimeError:
+            return None
+        t = d - y
+        k = self.driver_of(self.x)
+        if abs(t[k]) <= self.tol.angle:
+            return None
+        return t / t[k]
+
     def _previous(self) -> FloatArray:
         return self.x
 
@@ -286,26 +318,45 @@ class _Tracker:
         return bool(np.all(np.sign(x[big]) == np.sign(prev[big])))
 
 
-def _start_direction(model: LoopModel) -> FloatArray:
+def _start_direction(model: LoopModel, weights: FloatArray | None = None) -> FloatArray:
     """Direction of the first step off flat for the general solver.
 
-    The assignment's signs (or the pattern's target angles) projected onto the null space of the
-    flat-state Jacobian: every rigid fold leaves flat inside that space (first-order closure),
-    although not every direction in it is a fold (second order decides, hence the corrector).
+    The assignment's signs (or the pattern's target angles), optionally scaled per crease by
+    ``weights``, projected onto the null space of the flat-state Jacobian: every rigid fold leaves
+    flat inside that space (first-order closure), although not every direction in it is a fold
+    (second order decides, hence the corrector).
     """
     ta = model.pattern.target_angles[model.var_crease]
     if np.all(np.isfinite(ta)) and np.abs(ta).max() > 0:
         s = ta / np.abs(ta).max()
     else:
         s = model.signs.copy()
+    if weights is not None:
+        s = s * weights
     _, J = model.residual_jacobian(np.zeros(model.n))
     if J is None or J.nnz == 0:
         return s
     y = spla.lsqr(J, J @ s, atol=1e-14, btol=1e-14, iter_lim=10 * model.n)[0]
     d = s - y
-    if np.abs(d).max() <= 1e-6 * np.abs(s).max() or np.any(np.sign(d[np.abs(d) > 0.5]) != np.sign(s[np.abs(d) > 0.5])):
-        return s  # projection lost the assignment: keep the signs
+    big = np.abs(d) > 0.5 * np.abs(d).max()
+    if np.abs(d).max() <= 1e-6 * np.abs(s).max() or np.any(np.sign(d[big]) != np.sign(s[big])):
+        return s / np.abs(s).max()  # projection lost the assignment: keep the signs
     return d / np.abs(d).max()
+
+
+def _start_directions(model: LoopModel) -> list[FloatArray]:
+    """The default start direction, then ``_START_TRIES - 1`` seeded variations of it.
+
+    A flat state is a singular point of the fold: the first-order feasible directions form a
+    space much larger than the rigid branches leaving it, and the corrector lands on a branch only
+    from close enough. The variations scale each crease's share by a seeded random factor in
+    [0.2, 1] before the projection (deterministic: seeds 0, 1, 2...).
+    """
+    out = [_start_direction(model)]
+    for seed in range(_START_TRIES - 1):
+        w = np.random.default_rng(seed).uniform(0.2, 1.0, model.n)
+        out.append(_start_direction(model, w))
+    return out
 
 
 def _resolve_driver(model: LoopModel, driver: Any) -> int | None:
@@ -438,8 +489,12 @@ def fold_path(
     if stop_when is not None and stop_when(states[0]):
         return FoldPath((states[0],), "contact", drv_name, _meta(tr, target, 0.0))
     h = min(levels[1], _FIRST_STEP) if tr.closed is None else levels[1]
+    starts = _start_directions(model)[1:] if tr.closed is None else []
     for i in range(1, n_states):
         reached, h = tr.advance(float(levels[i]), h)
+        while not reached and i == 1 and starts:  # off flat: try the next start direction
+            tr.direction, tr.x, tr.level, tr.factor = starts.pop(0), np.zeros(model.n), 0.0, None
+            reached, h = tr.advance(float(levels[i]), min(levels[1], _FIRST_STEP))
         if not reached:
             stop = "lock"
             break
@@ -471,6 +526,7 @@ def _meta(tr: _Tracker, target: float, reached: float) -> dict[str, Any]:
         "reachable": reached,
         "driver_unknown": tr.driver,
         "closed_form": tr.closed is not None,
+        "direction": tr.direction.copy(),
     }
 
 
@@ -512,6 +568,8 @@ def solve_state(pattern: CreasePattern, t: float, *, path: FoldPath | None = Non
     if abs(s0.t - t) <= 1e-15:
         return s0
     tr = _tracker(model, k_drv, tol)
+    if tr.closed is None and "direction" in path.meta:
+        tr.direction = np.asarray(path.meta["direction"], dtype=float)
     tr.x = np.asarray(s0.angles[model.var_crease], dtype=float).copy()
     tr.level = float(np.abs(tr.x).max()) if k_drv is None else abs(float(tr.x[k_drv]))
     if tr.level == 0.0:
