@@ -52,6 +52,13 @@ def main() -> int:
     rep = clearance(plan, path, refine=False)
     t_sweep = time.perf_counter() - t0
     cand = np.mean([r.candidates for r in rep.table])
+    t0 = time.perf_counter()
+    rep_refined = clearance(plan, path, refine=True)
+    t_refined = time.perf_counter() - t0
+    beyond = miura_path(cp, 60.0, math.radians(75), N_STATES)  # past the bevels' design fold
+    t0 = time.perf_counter()
+    rep_beyond = clearance(plan, beyond, refine=True)
+    t_beyond = time.perf_counter() - t0
 
     # ---- OpenCascade pairwise booleans on sampled states and pairs
     n = cp.n_panels
@@ -110,6 +117,10 @@ def main() -> int:
     print(f"our clearance sweep              {t_sweep:8.2f} s   ({1e3 * t_sweep / N_STATES:.1f} ms/state, "
           f"{cand:.0f} narrow-phase pairs/state)")
     print(f"  min clearance {rep.min_clearance:.4f} mm, first contact {rep.first_contact}")
+    print(f"same with adaptive refinement    {t_refined:8.2f} s   ({len(rep_refined.table)} states)")
+    print(f"path to 75 deg (past the design) {t_beyond:8.2f} s   ({len(rep_beyond.table)} states): first contact "
+          f"t = {rep_beyond.first_contact[0] if rep_beyond.first_contact else float('nan'):.4f} "
+          f"(expected 60/75 = 0.8), min {rep_beyond.min_clearance:.3f} mm")
     print(f"OCP Common per pair (median of {len(per_pair)})  {1e3 * t_pair:8.3f} ms")
     print(f"OCP solids built once            {t_build:8.2f} s (not counted)")
     print(f"OCP solid placement per state    {t_place:8.3f} s")
