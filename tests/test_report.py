@@ -166,3 +166,20 @@ def test_headless_browser_screenshot(tmp_path, page):
                     "--window-size=1200,3000", f.as_uri()], check=True, timeout=120, capture_output=True)
     w, h = png_size(Path(shot).read_bytes())
     assert (w, h) == (1200, 3000)
+
+
+def test_locked_pattern_report_shows_least_squares_fold():
+    # The standard square twist is locked with ideal hinges (Hull, *Origametry*, 2020); the report
+    # then renders the least-squares fold of the joint-slack analysis and tabulates the play.
+    pytest.importorskip("thickpanel.kinematics")
+    d = loads_design('[layout]\nfamily = "square-twist"\nside = 40.0\ntwist_deg = 30.0\n[panels]\nthickness = 1.0\n'
+                     '[method]\nname = "membrane-gap"\n[fold]\ntarget_deg = 60.0\nstates = 8\n')
+    res = run_pipeline(d, command="report", stages=("pattern", "rigidity", "fold path", "method"))
+    assert res.rigid.kind == "locked" and res.path is None and res.slack is not None
+    html_text = render_report(res)
+    c = Checker()
+    c.feed(html_text)
+    assert not c.errors and "Joint slack (locked pattern)" in c.headings
+    assert "least-squares fold" in html_text
+    assert len(c.srcs) >= 3  # crease drawing, fold strip, envelope
+    assert res.metrics["envelope_from"] == "least-squares fold"

@@ -59,12 +59,44 @@ class BuildResult:
     plan: Any = None
     clearance: Any = None
     parts: Any = None
+    slack: Any = None
     stages: list[dict[str, Any]] = field(default_factory=list)
     checks: list[dict[str, Any]] = field(default_factory=list)
     metrics: dict[str, Any] = field(default_factory=dict)
     outputs: list[Path] = field(default_factory=list)
     report: Path | None = None
     out_dir: Path | None = None
+
+    def poses_at(self, t: float) -> tuple[np.ndarray, str] | None:
+        """``((P, 4, 4) slab poses, source)`` at fold fraction ``t``, or None without any fold.
+
+        The source is ``fold path`` (rigid kinematics) or, for a locked pattern, ``least-squares
+        fold`` (the joint-slack solution, panels rigid, hinges with play).
+        """
+        if self.path is not None and self.path.states:
+            last = float(self.path.states[-1].t)
+            st = self.path.at(min(float(t), last if math.isfinite(last) else 1.0))
+            return (self.plan.poses(st) if self.plan is not None else np.asarray(st.poses)), "fold path"
+        if self.slack is not None and len(self.slack.fractions):
+            k = int(np.argmin(np.abs(np.asarray(self.slack.fractions) - t)))
+            return np.asarray(self.slack.poses[k]), "least-squares fold"
+        return None
+
+    def corner_points(self, poses: np.ndarray) -> np.ndarray:
+        """(k, 3) corners of every slab (or bare panel) placed by ``poses``, mm."""
+        out = []
+        if self.plan is None:
+            for p in self.pattern.panels:
+                poly = self.pattern.panel_polygon(p.index)
+                h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
+                out.append((h @ poses[p.index].T)[:, :3])
+            return np.vstack(out)
+        for sl in self.plan.slabs:
+            poly = sl.polygon_array()
+            for z in (sl.z0, sl.z1):
+                h = np.column_stack([poly, np.full(len(poly), z), np.ones(len(poly))])
+                out.append((h @ poses[sl.panel].T)[:, :3])
+        return np.vstack(out)
 
     @property
     def ok(self) -> bool:
@@ -309,6 +341,7 @@ def _slack(run: _Run, cp: Any) -> None:
             rec["status"] = "failed"
             rec["note"] = str(exc)
             return
+        res.slack = rep
         worst = ", ".join(f"{h} {mm:.3g} mm" for h, mm in rep.worst(3))
         rec["note"] = (f"largest hinge play {rep.max_play_mm:.3g} mm to fold {_deg(target):.0f} deg with rigid "
                        f"panels (worst: {worst})")
@@ -465,32 +498,19 @@ def _where_text(where: Any) -> str:
 
 def _envelope(res: BuildResult) -> None:
     """Deployed and stowed bounding boxes (mm) of the slabs, or of the bare panels without a plan."""
-    if res.path is None or not res.path.states:
-        return
-    for label, state in (("deployed", res.path.states[0]), ("stowed", res.path.states[-1])):
-        pts = _state_points(res, state)
+    for label, t in (("deployed", 0.0), ("stowed", 1.0)):
+        got = res.poses_at(t)
+        if got is None:
+            return
+        pts = res.corner_points(got[0])
         lo, hi = pts.min(axis=0), pts.max(axis=0)
         res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
+        res.metrics["envelope_from"] = got[1]
     dep = res.metrics["deployed_envelope_mm"]
     sto = res.metrics["stowed_envelope_mm"]
     foot = sto[0] * sto[1]
     res.metrics["packing_ratio"] = float(res.metrics["deployed_area_mm2"] / foot) if foot > 0 else None
     res.metrics["deployed_diameter_mm"] = float(math.hypot(dep[0], dep[1]))
-
-
-def _state_points(res: BuildResult, state: Any) -> np.ndarray:
-    """(k, 3) corner points of every slab (or panel) at ``state``, mm."""
-    plan = res.plan
-    if plan is None:
-        return np.vstack([state.panel_vertices_3d(p.index) for p in res.pattern.panels])
-    poses = plan.poses(state)
-    out = []
-    for s in plan.slabs:
-        poly = s.polygon_array()
-        for z in (s.z0, s.z1):
-            h = np.column_stack([poly, np.full(len(poly), z), np.ones(len(poly))])
-            out.append((h @ poses[s.panel].T)[:, :3])
-    return np.vstack(out)
 
 
 def _solids(run: _Run) -> None:

@@ -108,15 +108,16 @@ def crease_png(pattern: Any) -> bytes:
     return _png(fig)
 
 
-def _slab_faces(res: Any, state: Any) -> list[np.ndarray]:
-    """Polygons (k, 3) of every slab's faces (or bare panels) at ``state``, mm."""
+def _slab_faces(res: Any, poses: np.ndarray) -> list[np.ndarray]:
+    """Polygons (k, 3) of every slab's faces (or bare panels) placed by ``poses`` (P, 4, 4), mm."""
     faces: list[np.ndarray] = []
     plan = getattr(res, "plan", None)
     if plan is None:
         for p in res.pattern.panels:
-            faces.append(state.panel_vertices_3d(p.index))
+            poly = res.pattern.panel_polygon(p.index)
+            h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
+            faces.append((h @ poses[p.index].T)[:, :3])
         return faces
-    poses = plan.poses(state)
     for s in plan.slabs:
         poly = s.polygon_array()
         n = len(poly)
@@ -147,20 +148,18 @@ def _draw_state(ax: Any, faces: list[np.ndarray], lim: tuple[np.ndarray, np.ndar
 
 
 def fold_strip_png(res: Any, fractions: Sequence[float] = (0.0, 0.25, 0.5, 0.75, 1.0)) -> bytes | None:
-    """A row of 3D renders at the given fold fractions (needs a fold path)."""
-    path = getattr(res, "path", None)
-    if path is None or not path.states:
+    """A row of 3D renders at the given fold fractions (fold path, or a locked pattern's
+    least-squares fold); None without either."""
+    frames = [res.poses_at(t) for t in fractions] if hasattr(res, "poses_at") else []
+    if not frames or any(f is None for f in frames):
         return None
     from matplotlib.figure import Figure
 
-    last = float(path.states[-1].t) if math.isfinite(path.states[-1].t) else 1.0
-    ts = [min(t, last) for t in fractions]
-    states = [path.at(t) for t in ts]
-    all_faces = [_slab_faces(res, s) for s in states]
-    fig = Figure(figsize=(3.0 * len(ts), 3.2), dpi=90)
-    for k, (t, faces) in enumerate(zip(ts, all_faces, strict=True)):
+    fig = Figure(figsize=(3.0 * len(fractions), 3.2), dpi=90)
+    for k, (t, fr) in enumerate(zip(fractions, frames, strict=True)):
+        faces = _slab_faces(res, fr[0])
         pts = np.vstack(faces)
-        ax = fig.add_subplot(1, len(ts), k + 1, projection="3d")
+        ax = fig.add_subplot(1, len(fractions), k + 1, projection="3d")
         _draw_state(ax, faces, (pts.min(axis=0), pts.max(axis=0)))
         ax.set_title(f"t = {t:.2f}", fontsize=10)
     fig.subplots_adjust(left=0, right=1, bottom=0, top=0.9, wspace=0)
@@ -169,12 +168,12 @@ def fold_strip_png(res: Any, fractions: Sequence[float] = (0.0, 0.25, 0.5, 0.75,
 
 def envelope_png(res: Any) -> bytes | None:
     """Stowed state seen from above and from the side with its bounding-box dimensions in mm."""
-    path = getattr(res, "path", None)
-    if path is None or not path.states:
+    fr = res.poses_at(1.0) if hasattr(res, "poses_at") else None
+    if fr is None:
         return None
     from matplotlib.figure import Figure
 
-    faces = _slab_faces(res, path.states[-1])
+    faces = _slab_faces(res, fr[0])
     pts = np.vstack(faces)
     lo, hi = pts.min(axis=0), pts.max(axis=0)
     size = hi - lo
@@ -318,7 +317,8 @@ def render_report(res: Any) -> str:
     except Exception as exc:  # noqa: BLE001 - a drawing failure must not lose the whole report
         parts.append(f'<p class="note">Crease drawing failed: {_e(exc)}</p>')
     parts += ["<h2>Fold sequence</h2>",
-              '<p class="note">Renders at fold fractions t = 0 (deployed) to 1 (stowed).</p>',
+              f'<p class="note">Renders at fold fractions t = 0 (deployed) to 1 (stowed), from the '
+              f'{_e(m.get("envelope_from", "fold path"))}.</p>',
               _img(fold_strip_png(res), "fold-state renders"),
               "<h2>Clearance over the fold</h2>"]
     rep = getattr(res, "clearance", None)
@@ -334,6 +334,16 @@ def render_report(res: Any) -> str:
                                 [[f"{a}-{b}", float(c), float(t)] for (a, b), c, t in rep.worst_pairs],
                                 num=(1, 2)))
     parts.append(_img(_clearance_png(rep), "clearance against fold fraction"))
+    slack = getattr(res, "slack", None)
+    if slack is not None:
+        parts.append("<h2>Joint slack (locked pattern)</h2>")
+        parts.append(f"<p>With ideal hinges this pattern does not fold. The least-squares fold with rigid panels "
+                     f"needs up to {slack.max_play_mm:.3g} mm of play at a hinge to reach "
+                     f"{math.degrees(slack.target):.0f} deg; worst hinges: "
+                     + _e(", ".join(f"{h} ({mm:.3g} mm)" for h, mm in slack.worst(5))) + ".</p>")
+        parts.append(_table(["t", "total (mm)", "worst hinge along (mm)", "across (mm)", "off-axis (deg)"],
+                            [[r["t"], r["total_mm"], r["worst_along_mm"], r["worst_across_mm"],
+                              r["worst_off_axis_deg"]] for r in slack.rows()], num=(0, 1, 2, 3, 4)))
     parts.append("<h2>Stowed envelope</h2>")
     env_rows = []
     for key, label in (("deployed_envelope_mm", "deployed"), ("stowed_envelope_mm", "stowed")):
