@@ -245,3 +245,28 @@ def test_plain_miura_collides_early_and_names_pairs():
     a, b = rep.where[0]
     assert a.startswith("P") and b.startswith("P") and len(a) == 4
     assert f"{a} and {b}" in rep.summary()
+
+
+def test_membrane_gap_roll_fold_counts_the_tucked_layer():
+    # Zirbel et al. 2013: a fold that wraps k tucked layers needs a (k + 2) t gap. Roll fold of three
+    # panels (the last one folded first, then both over the first): the first fold wraps one layer.
+    v = [[0, 0], [40, 0], [80, 0], [110, 0], [110, 30], [80, 30], [40, 30], [0, 30]]
+    e = [[0, 1], [1, 2], [2, 3], [3, 4], [4, 5], [5, 6], [6, 7], [7, 0], [1, 6], [2, 5]]
+    from thickpanel.pattern import CreasePattern
+
+    cp = CreasePattern(v, e, ["border"] * 8 + ["valley", "valley"])
+    states = []
+    for t in np.linspace(0, 1, 41):
+        ang = np.r_[np.zeros(8), max(0.0, 2 * t - 1) * math.pi, min(1.0, 2 * t) * math.pi]
+        states.append(fold_state_from_angles(cp, ang, base=0, t=float(t)))
+    path = FoldPath(tuple(states))
+    plan = make_plan(cp, "membrane-gap", thickness=2.0, target_fold=math.pi, path=path)
+    assert plan.meta["layers"] == {8: 1, 9: 0}  # read from the stowed layer order
+    assert plan.hinge_for(8).gap == pytest.approx((1 + 2) * 2.0)
+    assert plan.hinge_for(9).gap == pytest.approx((0 + 2) * 2.0)
+    rep = clearance(plan, path)
+    assert rep.min_clearance >= -rep.tol.contact  # the stowed stack just touches
+    short = make_plan(cp, "membrane-gap", thickness=2.0, target_fold=math.pi, path=path, layers={8: 0, 9: 0})
+    rep2 = clearance(short, path)
+    assert rep2.min_clearance == pytest.approx(-2.0, abs=1e-6)  # the tucked panel is squeezed by t
+    assert rep2.where[0] == ("P000", "P002")
