@@ -210,3 +210,24 @@ def test_every_schema_key_is_documented():
     for k in SCHEMA:
         assert f"| `{k.name}` |" in text
         assert k.unit is not None and k.doc
+
+
+def test_material_keys_checked():
+    pytest.importorskip("hinges.materials")
+    msg = r"\[panels\] material = 'al-6061' is not a known material; did you mean 'al-6061-t6'"
+    with pytest.raises(DesignFileError, match=msg):
+        loads_design(MINI.replace("thickness = 3.0", 'thickness = 3.0\nmaterial = "al-6061"'))
+    with pytest.raises(DesignFileError, match=r"#1 material = 'pla\+' is not a known material; did you mean 'pla'"):
+        loads_design(MINI + '[[panels.override]]\npanels = ["P000"]\nmaterial = "pla+"\n')
+
+
+def test_per_region_material_reaches_the_slabs():
+    pytest.importorskip("thickpanel.thickness")
+    from thickpanel.build import run_pipeline
+
+    d = loads_design(MINI + '[method]\nname = "tapered"\n[fold]\ntarget_deg = 90.0\nstates = 6\n'
+                     '[[panels.override]]\npanels = ["P001"]\nmaterial = "petg"\n')
+    res = run_pipeline(d, stages=("pattern", "fold path", "method"))
+    assert res.plan is not None
+    assert [s.material for s in res.plan.slabs][1] == "petg"
+    assert all(s.material != "petg" for k, s in enumerate(res.plan.slabs) if k != 1)

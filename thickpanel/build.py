@@ -441,6 +441,12 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
             res.check("thickness method", "fail", f"{name}: {exc}")
             run.blocked = f"{name} failed"
             return
+        if any(o.material for o in d.panels.overrides):  # per-region materials go on the slabs
+            import dataclasses
+
+            mats = d.panel_materials(cp)
+            plan = dataclasses.replace(plan, slabs=tuple(
+                dataclasses.replace(sl, material=mats.get(sl.panel) or sl.material) for sl in plan.slabs))
         res.plan = plan
         res.metrics["method"] = name
         rec["note"] = name + (f" ({'; '.join(plan.notes)})" if plan.notes else "")

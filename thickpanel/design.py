@@ -480,7 +480,21 @@ class _Validator:
             out.append(PanelOverride(tuple(vals["panels"]),
                                      tuple(vals["radius"]) if vals["radius"] else None,  # type: ignore[arg-type]
                                      vals["thickness"], vals["material"]))
+        if self.check_layout:
+            self._check_materials([("[panels] material", mat)] + [
+                (f"[[panels.override]] #{i + 1} material", o.material) for i, o in enumerate(out)])
         return PanelsSpec(thick, mat, tuple(out))
+
+    def _check_materials(self, items: list[tuple[str, str | None]]) -> None:
+        try:
+            from hinges.materials import MATERIALS
+        except ImportError:  # materials table not installed: the build reports it
+            return
+        known = sorted(MATERIALS)
+        for path, m in items:
+            if m and m not in MATERIALS:
+                raise self.fail(f"{path} = {m!r} is not a known material{suggest(m, known)} "
+                                f"(known: {', '.join(known)}; empty for unspecified)")
 
     def method(self) -> MethodSpec:
         t = self.section("method")
