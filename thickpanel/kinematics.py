@@ -333,15 +333,29 @@ def _start_direction(model: LoopModel, weights: FloatArray | None = None) -> Flo
         s = model.signs.copy()
     if weights is not None:
         s = s * weights
-    _, J = model.residual_jacobian(np.zeros(model.n))
-    if J is None or J.nnz == 0:
+    proj = _flat_projector(model)
+    if proj is None:
         return s
-    y = spla.lsqr(J, J @ s, atol=1e-14, btol=1e-14, iter_lim=10 * model.n)[0]
-    d = s - y
+    d = s - proj(s)
     big = np.abs(d) > 0.5 * np.abs(d).max()
     if np.abs(d).max() <= 1e-6 * np.abs(s).max() or np.any(np.sign(d[big]) != np.sign(s[big])):
         return s / np.abs(s).max()  # projection lost the assignment: keep the signs
     return d / np.abs(d).max()
+
+
+def _flat_projector(model: LoopModel) -> Callable[[FloatArray], FloatArray] | None:
+    """Orthogonal projection onto the row space of the flat-state Jacobian (cached per model)."""
+    cache = model.__dict__.setdefault("_flat_projector", {})
+    if "f" not in cache:
+        _, J = model.residual_jacobian(np.zeros(model.n))
+        if J is None or J.nnz == 0:
+            cache["f"] = None
+        else:
+            N = (J.T @ J).tocsc()
+            scale = float(N.diagonal().max()) or 1.0
+            lu = spla.splu(N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale), permc_spec="MMD_AT_PLUS_A")
+            cache["f"] = lambda v: lu.solve(N @ v)
+    return cache["f"]  # type: ignore[no-any-return]
 
 
 def _start_directions(model: LoopModel) -> list[FloatArray]:
