@@ -51,7 +51,7 @@ def test_locked_twist_play_respects_fourfold_symmetry(locked):
     col = {h: i for i, h in enumerate(rep.hinges)}
     for group in (("C004", "C006", "C008", "C010"), ("C005", "C007", "C009", "C011")):
         vals = rep.play_mm[-1, [col[h] for h in group]]
-        assert np.ptp(vals) < 1e-6 * vals.max()
+        assert np.ptp(vals) < 1e-4 * vals.max()  # least-squares stopping precision
     worst = rep.worst(4)
     assert len(worst) == 4 and worst[0][1] == pytest.approx(rep.max_play_mm)
 
