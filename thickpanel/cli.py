@@ -103,14 +103,18 @@ def _print_summary(s: dict[str, Any]) -> None:
     w = max([len(c["check"]) for c in s["checks"]] + [5])
     for c in s["checks"]:
         out.write(f"  {c['verdict'].upper():<5} {c['check']:<{w}}  {c['detail']}\n")
-    for st in s["stages"]:
-        if st["status"] != "ok":
+    details = " ".join(c["detail"] for c in s["checks"])
+    for st in s["stages"]:  # stages not run, unless a check above already says why
+        if st["status"] in ("not available", "blocked") and st["note"] not in details:
             out.write(f"  note: stage {st['stage']} {st['status']}: {st['note']}\n")
     if s["outputs"]:
         out.write(f"  wrote {len(s['outputs'])} files to {s['out_dir']}\n")
     if s.get("report"):
         out.write(f"  report: {s['report']}\n")
-    out.write(f"verdict: {'PASS' if s['ok'] else 'FAIL'}\n")
+    warns = sum(c["verdict"] == "warn" for c in s["checks"])
+    fails = sum(c["verdict"] == "fail" for c in s["checks"])
+    tail = ", ".join(x for x in (f"{fails} failed" if fails else "", f"{warns} warnings" if warns else "") if x)
+    out.write(f"verdict: {'PASS' if s['ok'] else 'FAIL'}" + (f" ({tail})" if tail else "") + "\n")
 
 
 def _new(args: argparse.Namespace) -> int:
