@@ -135,7 +135,8 @@ counts with its signed distance. Narrow phase: separating-axis test (exact penet
 distance lower bound) refined by the exact polytope distance (Ericson 2005, *Real-Time Collision
 Detection*); broad phase: sort-and-sweep of bounding boxes.
 
-Reading the tables: *applies* and *why* come from `methods_for`; *reachable* is the largest fold the
+Reading the tables: rows, *applies* and *why* come from `methods_for(..., sweep=True)` (methods
+that clear the path first); *reachable* is the largest fold the
 method reaches on that pattern; *min clearance* is the sweep's minimum over the path
 (`inf` = no two slabs came within the margin of one slab thickness), with the pair and fold
 fraction; *first contact* is the first fold fraction where a pair touches (non-neighbours) or
@@ -180,7 +181,7 @@ def family_section(name: str, case: dict[str, Any], index: int = 0) -> list[str]
     lines += ["", "| method | applies | why | reachable (deg) | min clearance (mm) | where | first contact t |",
               "| --- | --- | --- | --- | --- | --- | --- |"]
     try:
-        advice = methods_for(cp, target, thickness=t, path=path)
+        advice = methods_for(cp, target, thickness=t, path=path, sweep=True)
     except ThickpanelError as exc:
         return lines + [f"| all | no | {exc} | | | | |", ""]
     for adv in advice:

@@ -210,3 +210,18 @@ def test_offset_panel_standoffs_inside_usable_length_and_buildable():
             v0 = cp.vertices[cp.creases[so.crease, 0]]
             along = (np.asarray(so.polygon) - v0) @ cp.crease_directions[so.crease]
             assert along.min() >= h.usable[0] - 1e-9 and along.max() <= h.usable[1] + 1e-9
+
+
+def test_methods_for_with_sweep_ranks_clear_methods_first():
+    # Miura-ori (Schenk & Guest 2013 kinematics): tapered bevels clear the path (Tachi 2011), the
+    # plain baseline does not; with sweep=True the advice carries the clearance and its order.
+    cpm = miura(nx=3, ny=3)
+    path = miura_path(cpm, 60.0, math.radians(50), 8)
+    adv = methods_for(cpm, math.radians(100), thickness=1.0, path=path, sweep=True)
+    by = {a.method: a for a in adv}
+    assert by["tapered"].min_clearance > 0
+    assert by["plain"].min_clearance < 0 and "collides" in by["plain"].reason
+    applicable = [a.method for a in adv if a.applies]
+    clear = [m for m in applicable if by[m].min_clearance >= 0]
+    assert applicable[: len(clear)] == clear
+    assert math.isnan(methods_for(cpm, math.radians(100), thickness=1.0, path=path)[0].min_clearance)

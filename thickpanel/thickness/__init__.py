@@ -113,12 +113,16 @@ class MethodAdvice:
         Why it does or does not apply.
     reachable : float, rad
         Largest fold the method reaches on this pattern (0 when it does not apply).
+    min_clearance : float, mm
+        Minimum clearance over the path when ``methods_for(..., sweep=True)`` ran the clearance
+        sweep (negative = penetration), NaN otherwise.
     """
 
     method: str
     applies: bool
     reason: str
     reachable: float
+    min_clearance: float = float("nan")
 
 
 def _rigid_verdict(pattern: CreasePattern) -> tuple[str, str]:
@@ -139,12 +143,16 @@ def methods_for(
     *,
     thickness: float | Any,
     path: FoldPath | None = None,
+    sweep: bool = False,
     tol: Tolerances = DEFAULT_TOL,
 ) -> list[MethodAdvice]:
     """Every registered method with applies / does not apply, the reason and the reachable fold.
 
-    Applicable methods come first in recommendation order (exact full-range methods before the
-    approximate ones, the ``plain`` baseline last).
+    Applicable methods come first in recommendation order: those reaching the target (exact
+    full-range methods before approximate ones), then partial ones by reachable fold, the
+    ``plain`` baseline last; then the methods that do not apply. With ``sweep=True`` and a path,
+    every applicable plan is also swept (:func:`thickpanel.clearance.clearance`) and methods that
+    clear the whole path come before those that collide.
     """
     kind, why = _rigid_verdict(pattern)
     out: list[MethodAdvice] = []
@@ -173,6 +181,22 @@ def methods_for(
             reason = f"applies up to {math.degrees(reach):.4g} deg of the {math.degrees(target_fold):.4g} deg target"
         else:
             reason = plan.notes[0] if plan.notes else "applies"
-        out.append(MethodAdvice(name, True, reason, reach))
-    out.sort(key=lambda a: (not a.applies, a.method == "plain"))
+        mc = float("nan")
+        if sweep and path is not None:
+            from ..clearance import clearance
+
+            rep = clearance(plan, path, tol=tol)
+            mc = rep.min_clearance
+            if rep.collides and rep.where is not None:
+                (a, b), tt = rep.where
+                reason += f"; collides: {a}-{b} by {-mc:.3g} mm at t = {tt:.3f}"
+        out.append(MethodAdvice(name, True, reason, reach, mc))
+    rank = {n: i for i, n in enumerate(names)}
+
+    def key(a: MethodAdvice) -> tuple[bool, bool, bool, bool, float, int]:
+        partial = a.reachable < target_fold - tol.angle
+        collides = bool(a.min_clearance < -tol.contact)  # NaN (not swept) compares False
+        return (not a.applies, a.method == "plain", collides, partial, -a.reachable if partial else 0.0, rank[a.method])
+
+    out.sort(key=key)
     return out
