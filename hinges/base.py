@@ -277,12 +277,15 @@ def positive(style: str, name: str, value: Any, *, allow_zero: bool = False) -> 
 
 
 def knuckle_layout(
-    ctx: HingeContext, style: str, n: int, length: float | None, axial: float, min_length: float
+    ctx: HingeContext, style: str, n: int, length: float | None, axial: float, min_length: float,
+    step: float = 0.0,
 ) -> list[tuple[float, float]]:
     """``n`` knuckle intervals (s0, s1) centred in the usable length, separated by ``axial`` mm.
 
     An ``axial`` margin is kept at both ends of the usable length too, so that the clearance
-    notches around the end knuckles stay inside it.
+    notches around the end knuckles stay inside it. With ``step`` > 0 a knuckle length that fills
+    the usable length is rounded down to a multiple of ``step`` mm, so that hinges of nearly equal
+    length share one barrel (and one pin length).
 
     Raises HingeError naming the crease when they do not fit the usable hinge length.
     """
@@ -294,6 +297,8 @@ def knuckle_layout(
     k_max = (usable - (n - 1) * axial) / n
     if length is None:
         k = k_max
+        if step > 0:
+            k = math.floor(k / step + ctx.tol.length) * step
     else:
         k = length
         need = n * k + (n - 1) * axial

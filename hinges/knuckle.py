@@ -92,6 +92,9 @@ class KnuckleHinge:
     printer_resolution_mm : float
         Smallest gap the printer resolves (0.1 mm: common practice for FDM).
     pin_material : str
+    length_step_mm : float
+        Knuckle lengths that fill the usable length are rounded down to this step (0 = exact), so
+        nearly equal hinges share barrels and pin lengths.
     """
 
     knuckles: int = 3
@@ -105,6 +108,7 @@ class KnuckleHinge:
     clearance_mm: float | None = None
     printer_resolution_mm: float = 0.1
     pin_material: str = "stainless-304"
+    length_step_mm: float = 0.1
     name: str = "knuckle"
 
     def _pin(self, ctx: HingeContext) -> tuple[float, float]:
@@ -182,7 +186,7 @@ class KnuckleHinge:
         radial = positive(self.name, "radial_clearance_mm", self.radial_clearance_mm,
                           allow_zero=True)
         segs = knuckle_layout(ctx, self.name, int(self.knuckles), self.knuckle_length_mm, axial,
-                              min_length=max(d, 1.0))
+                              min_length=max(d, 1.0), step=self.length_step_mm)
         sides: list[dict[str, list]] = [{"n": [], "b": []}, {"n": [], "b": []}]
         for i, (s0, s1) in enumerate(segs):
             own, other = i % 2, 1 - i % 2

@@ -45,7 +45,7 @@ class PrintInPlaceHinge(KnuckleHinge):
         radial = positive(self.name, "radial_clearance_mm", self.radial_clearance_mm,
                           allow_zero=True)
         segs = knuckle_layout(ctx, self.name, n, self.knuckle_length_mm, axial,
-                              min_length=max(d, 1.0))
+                              min_length=max(d, 1.0), step=self.length_step_mm)
         a_b, b_b, a_n, b_n, rods = [], [], [], [], []
         for i, (s0, s1) in enumerate(segs):
             if i % 2 == 0:

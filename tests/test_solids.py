@@ -72,7 +72,8 @@ def test_knuckle_panels_volume_matches_notches_and_barrels():
     br = a_barrels[0]
     k = br.s1 - br.s0
     # usable 2.25..27.75 mm less 0.2 mm at each end, 3 knuckles, 0.2 mm gaps: k = (25.1 - 0.4) / 3
-    assert k == pytest.approx((25.1 - 0.4) / 3)
+    # = 8.233 mm, rounded down to the 0.1 mm length step: 8.2 mm
+    assert k == pytest.approx(8.2)
     R, c, ca, cr = br.radius, br.clip, 0.2, 0.3
     barrel = k * (clipped_disk_area(R, c) - math.pi * br.hole**2)
     own = (c - g / 2) * k
@@ -91,7 +92,7 @@ def test_knuckle_panels_volume_matches_notches_and_barrels():
         assert BRepExtrema_DistShapeShape(b, body).Value() < 1e-7
         assert common_volume(b, body) < 1e-6
     # pin: ISO 286-2 g6 mean 1.995 mm over the three knuckles + 2 gaps
-    assert pin.volume == pytest.approx(math.pi * (1.995 / 2) ** 2 * 25.1, rel=1e-9)
+    assert pin.volume == pytest.approx(math.pi * (1.995 / 2) ** 2 * (3 * 8.2 + 0.4), rel=1e-9)
     assert pin.pins == (2.0,) and pin.attrs["fit"] == "H7/g6"
 
 
@@ -221,3 +222,34 @@ def test_tape_sheet_membrane_covers_the_sheet_outline():
     assert mem.area == pytest.approx(80 * 30) and mem.volume == pytest.approx(80 * 30 * 0.05)
     assert np.allclose(occ.bbox(mem.frame_shape), [[0, 0, 3.0], [80, 30, 3.05]], atol=1e-6)
     assert common_volume(mem.frame_shape, ps["P000"].frame_shape) < 1e-6
+
+
+def test_simple_polygon_check_handles_collinear_edges():
+    # simple polygon = no two non-adjacent edges meet (de Berg et al., Computational Geometry,
+    # 3rd ed. 2008, ch. 3). A U shape has two collinear but disjoint top edges: still simple.
+    from thickpanel.solids import _self_intersects
+
+    u_shape = np.array([[0, 0], [3, 0], [3, 2], [2, 2], [2, 1], [1, 1], [1, 2], [0, 2]], float)
+    assert not _self_intersects(u_shape, 1e-6)
+    bow = np.array([[0, 0], [2, 2], [2, 0], [0, 2]], float)
+    assert _self_intersects(bow, 1e-6)
+    # a vertex on a non-adjacent edge (T-junction) is not simple either
+    tee = np.array([[0, 0], [4, 0], [4, 2], [2, 2], [2, 0], [1, 2], [0, 2]], float)
+    assert _self_intersects(tee, 1e-6)
+
+
+def test_profile_validation_gives_the_same_parts_and_catches_bad_outlines():
+    plan = plain_plan(two_panels(), 3.0, 0.5)
+    full = build_parts(plan, hinge_style="knuckle")
+    fast = build_parts(plan, hinge_style="knuckle", validate="profile")
+    for a, b in zip(full.parts, fast.parts, strict=True):
+        assert a.name == b.name and a.volume == pytest.approx(b.volume, rel=1e-12)
+        assert all_valid(b)  # the fast path's solids pass the full BRepCheck too
+    base = plain_plan(two_panels(), 3.0, 0.5)
+    bow = ((0.0, 0.0), (39.0, 30.0), (39.0, 0.0), (0.0, 30.0))
+    bad = ThickPlan(base.pattern, "plain", (Slab(0, bow, 0.0, 3.0), base.slabs[1]), (),
+                    base.target_fold)
+    with pytest.raises(GeometryError, match="P000"):
+        build_parts(bad, validate="profile")
+    with pytest.raises(GeometryError, match="validate"):
+        build_parts(base, validate="sometimes")

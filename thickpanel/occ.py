@@ -47,6 +47,8 @@ from .typing import FloatArray
 
 __all__ = [
     "prism",
+    "polygon_face",
+    "prism_of_face",
     "cut_many",
     "half_space_box",
     "barrel_profile_prism",
@@ -88,6 +90,21 @@ def prism(polygon: FloatArray, z0: float, z1: float) -> TopoDS_Shape:
     pln = gp_Pln(gp_Ax3(gp_Pnt(0.0, 0.0, float(z0)), gp_Dir(0.0, 0.0, 1.0)))
     face = BRepBuilderAPI_MakeFace(pln, mk.Wire(), True).Face()
     return BRepPrimAPI_MakePrism(face, gp_Vec(0.0, 0.0, float(z1 - z0)), False).Shape()
+
+
+def polygon_face(polygon: FloatArray, z: float) -> TopoDS_Shape:
+    """Planar face of a polygon at height ``z`` (plane given, so no plane search), mm."""
+    mk = BRepBuilderAPI_MakePolygon()
+    for x, y in polygon:
+        mk.Add(gp_Pnt(float(x), float(y), float(z)))
+    mk.Close()
+    pln = gp_Pln(gp_Ax3(gp_Pnt(0.0, 0.0, float(z)), gp_Dir(0.0, 0.0, 1.0)))
+    return BRepBuilderAPI_MakeFace(pln, mk.Wire(), True).Face()
+
+
+def prism_of_face(face: TopoDS_Shape, height: float) -> TopoDS_Shape:
+    """Extrude a face along +z by ``height`` mm (``Copy=False``)."""
+    return BRepPrimAPI_MakePrism(face, gp_Vec(0.0, 0.0, float(height)), False).Shape()
 
 
 def half_space_box(
