@@ -282,5 +282,39 @@ def _extra_cycles(pattern: CreasePattern, tree: list[tuple[int, int, int]], n_lo
                                  range(len(back) - 1)]  # fmt: skip
         cycles.append(np.array(steps, dtype=np.int64))
         flat.add_edge(x, y, crease=s.a, seam=s.b)
-    # cycles around slits or holes are not modelled yet (see docs/architecture.md)
+    if dim > n_loops + len(cycles):
+        # panel cycles around holes or interior slits: close the full rigid motion around the
+        # fundamental cycle of every non-tree edge (redundant with the vertex loops, which only
+        # costs solver time; such patterns are rare)
+        cycles.extend(_fundamental_cycles(g, tree))
     return tuple(cycles)
+
+
+def _fundamental_cycles(g: object, tree: list[tuple[int, int, int]]) -> list[IntArray]:
+    """(k, 3) steps (from, to, crease) around the fundamental cycle of every non-tree edge."""
+    parent: dict[int, tuple[int, int]] = {}
+    depth: dict[int, int] = {}
+    for a, b, c in tree:
+        parent[b] = (a, c)
+        depth.setdefault(a, 0)
+        depth[b] = depth[a] + 1
+    used = {(min(a, b), max(a, b)) for a, b, _ in tree}
+    out: list[IntArray] = []
+    for a, b, d in g.edges(data=True):  # type: ignore[attr-defined]
+        if (min(a, b), max(a, b)) in used or "seam" in d:
+            continue
+        up_a: list[tuple[int, int, int]] = []
+        up_b: list[tuple[int, int, int]] = []
+        x, y = a, b
+        while x != y:
+            if depth.get(x, 0) >= depth.get(y, 0):
+                px, cx = parent[x]
+                up_a.append((x, px, cx))
+                x = px
+            else:
+                py, cy = parent[y]
+                up_b.append((py, y, cy))
+                y = py
+        steps = up_a + list(reversed(up_b)) + [(b, a, int(d["crease"]))]
+        out.append(np.array(steps, dtype=np.int64))
+    return out
