@@ -231,3 +231,23 @@ def test_per_region_material_reaches_the_slabs():
     assert res.plan is not None
     assert [s.material for s in res.plan.slabs][1] == "petg"
     assert all(s.material != "petg" for k, s in enumerate(res.plan.slabs) if k != 1)
+
+
+def test_stop_at_contact_ends_the_path_before_contact():
+    # The lamp-shade band curls until its two end panels meet (found by the clearance sweep near
+    # 33 deg); folding it to 40 deg with stop_at_contact must end the path before that contact, and
+    # the re-swept path then keeps a non-negative clearance. Oracle: the sweep's own first contact
+    # on the full path, checked against the truncated path's end.
+    pytest.importorskip("thickpanel.clearance")
+    from thickpanel.build import run_pipeline
+
+    ex = Path(__file__).resolve().parents[1] / "examples" / "lamp-shade.toml"
+    text = ex.read_text().replace("target_deg = 32.0", "target_deg = 40.0").replace(
+        "states = 12", "states = 12\nstop_at_contact = true")
+    d = loads_design(text, source=ex)
+    res = run_pipeline(d, stages=("pattern", "fold path", "method", "clearance"))
+    if res.clearance is None:
+        pytest.skip("no clearance report")
+    assert res.path.stop_reason == "contact"
+    assert 0.0 < res.metrics["reached_fold_deg"] < 40.0
+    assert res.clearance.min_clearance >= -1e-6

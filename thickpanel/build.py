@@ -481,6 +481,9 @@ def _clearance(run: _Run) -> None:
         return
     with run.stage("clearance") as rec:
         rep = fn(res.plan, res.path)
+        first = getattr(rep, "first_contact", None)
+        if d.fold.stop_at_contact and first:
+            rep = _stop_at_contact(res, fn, rep, float(first[0]))
         res.clearance = rep
         mc = float(rep.min_clearance)
         res.metrics["min_clearance_mm"] = mc
@@ -492,6 +495,23 @@ def _clearance(run: _Run) -> None:
         ok = mc >= d.checks.min_clearance
         res.check("clearance over the fold", "pass" if ok else "fail",
                   rec["note"] + f" (required >= {d.checks.min_clearance:g} mm)")
+
+
+def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
+    """Cut the fold path before the first contact at ``tc`` and sweep the shorter path again."""
+    from .poses import FoldPath
+
+    kept = tuple(s for s in res.path.states if s.t < tc)
+    if len(kept) < 2:
+        res.check("fold stops at first contact", "fail", f"first contact at t = {tc:.3f}, before the first "
+                  "sampled state off flat")
+        return rep
+    res.path = FoldPath(kept, stop_reason="contact", driver=res.path.driver)
+    reach = float(np.abs(kept[-1].angles).max())
+    res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
+    res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
+              f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
+    return sweep(res.plan, res.path)
 
 
 def _where_text(where: Any) -> str:
