@@ -227,7 +227,7 @@ def test_tape_sheet_membrane_covers_the_sheet_outline():
 def test_simple_polygon_check_handles_collinear_edges():
     # simple polygon = no two non-adjacent edges meet (de Berg et al., Computational Geometry,
     # 3rd ed. 2008, ch. 3). A U shape has two collinear but disjoint top edges: still simple.
-    from thickpanel.solids import _self_intersects
+    from thickpanel.outline import self_intersects as _self_intersects
 
     u_shape = np.array([[0, 0], [3, 0], [3, 2], [2, 2], [2, 1], [1, 1], [1, 2], [0, 2]], float)
     assert not _self_intersects(u_shape, 1e-6)
