@@ -253,3 +253,13 @@ def test_progress_bar_only_on_a_terminal():
         bar("fold path", 0, 1)
         bar("fold path", 1, 1)
         assert ("fold path" in st.text) == (tty and not quiet)
+
+
+@pytest.mark.cad
+def test_unwritable_output_folder_is_bad_input(starter, tmp_path):
+    blocker = tmp_path / "taken"
+    blocker.write_text("a file where the output folder should go")
+    r = run("fold", str(starter), "--at", "0", "-o", str(blocker / "sub"))
+    assert r.returncode == 2, (r.returncode, r.stderr)
+    assert "Traceback" not in r.stderr and r.stderr.count("\n") == 1
+    assert not any(p.suffix == ".tmp" for p in tmp_path.rglob("*"))  # no partial files left behind
