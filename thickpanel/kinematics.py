@@ -210,6 +210,7 @@ class _Tracker:
     level: float  # current driven magnitude, rad
     factor: Any = None  # last corrector factorisation (near the current point)
     multi: bool | None = None  # several degrees of freedom (decided at the first state off flat)
+    min_step: float = _MIN_STEP  # rad: smaller steps than this mean a lock
 
     def driver_of(self, x: FloatArray) -> int:
         if self.driver is not None:
@@ -228,7 +229,7 @@ class _Tracker:
             got = self._step(self.level + step)
             if got is None:
                 h = step / 2
-                if h < _MIN_STEP:
+                if h < self.min_step:
                     return False, h
                 continue
             self.x, iters = got
@@ -508,7 +509,9 @@ def fold_path(
         reached, h = tr.advance(float(levels[i]), h)
         while not reached and i == 1 and starts:  # off flat: try the next start direction
             tr.direction, tr.x, tr.level, tr.factor = starts.pop(0), np.zeros(model.n), 0.0, None
+            tr.min_step = _FIRST_STEP / 8  # the further starts only get a few halvings each
             reached, h = tr.advance(float(levels[i]), min(levels[1], _FIRST_STEP))
+        tr.min_step = _MIN_STEP
         if not reached:
             stop = "lock"
             break
