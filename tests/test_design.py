@@ -251,3 +251,13 @@ def test_stop_at_contact_ends_the_path_before_contact():
     assert res.path.stop_reason == "contact"
     assert 0.0 < res.metrics["reached_fold_deg"] < 40.0
     assert res.clearance.min_clearance >= -1e-6
+
+
+def test_unknown_method_option_suggests_nearest():
+    pytest.importorskip("thickpanel.thickness.membrane_gap")
+    from thickpanel.build import run_pipeline
+
+    d = loads_design(MINI + '[method]\nname = "membrane-gap"\noptions = { sid = "outside" }\n[fold]\nstates = 4\n')
+    with pytest.raises(DesignFileError, match=r"unknown key \[method\] options \(method 'membrane-gap'\) sid; "
+                                              r"did you mean 'side'"):
+        run_pipeline(d, stages=("pattern", "method"))

@@ -430,7 +430,11 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
                 run.blocked = rec["note"]
                 return
         opts = dict(d.method.options)
-        _check_options(make, opts, "[method] options", fixed=("pattern", "method", "thickness", "target_fold", "path"))
+        fixed = ("pattern", "method", "thickness", "target_fold", "path", "tol")
+        _check_options(make, opts, "[method] options", fixed=fixed)
+        impl, _ = _api(f"thickness.{name.replace('-', '_')}", "build")  # the method's own signature
+        if impl is not None:
+            _check_options(impl, opts, f"[method] options (method {name!r})", fixed=fixed)
         try:
             plan = make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
         except TypeError as exc:
