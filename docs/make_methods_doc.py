@@ -77,7 +77,9 @@ METHOD_ROWS = [
         ),
         (
             'thickness ratio `sin a / sin b` (1 Miura, sqrt 2 square-twist vertex); a hinge on the inner face of '
-            'both slabs turns 0..180, on opposite faces 0..90, on the outer face not at all'
+            'both slabs turns 0..180, on opposite faces 0..90, on the outer face not at all; where the faces '
+            'would stop a crease, `bevel="auto"` cuts both slabs by the bisector plane through the hinge axis '
+            '(tapered rule)'
         ),
         'Chen, Peng & You 2015, Science 349:396, doi:10.1126/science.aab2870',
     ),

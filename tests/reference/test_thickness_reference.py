@@ -270,3 +270,25 @@ def test_membrane_gap_roll_fold_counts_the_tucked_layer():
     rep2 = clearance(short, path)
     assert rep2.min_clearance == pytest.approx(-2.0, abs=1e-6)  # the tucked panel is squeezed by t
     assert rep2.where[0] == ("P000", "P002")
+
+
+def test_offset_crease_face_limits_and_bevelled_hybrid_on_miura():
+    # Chen, Peng & You 2015: hinges on panel faces; a hinge on the top of one slab and the bottom
+    # of the other stops at 90 deg (Lang et al. 2018), so the pure square-twist vertex plan stops
+    # near 90 deg of its driver fold.
+    cp = degree4_vertex(45.0, 90.0)
+    path = degree4_path(cp, 45.0, 90.0, math.radians(150), 61)
+    pure = make_plan(cp, "offset-crease", thickness=2.0, target_fold=math.radians(150), path=path, bevel=False)
+    assert 85.0 <= math.degrees(pure.meta["reachable"]) <= 95.0
+    assert any(h.fold_range[1] == pytest.approx(math.pi / 2) for h in pure.hinges)
+    # hybrid with Tachi 2011 bevels at the stopping creases: a Miura sheet (Schenk & Guest 2013
+    # kinematics) then clears its whole path, while the pure face-hinge plan meets at once.
+    cpm = miura()
+    pm = miura_path(cpm, GAMMA, math.radians(60), 16)
+    bare = make_plan(cpm, "offset-crease", thickness=1.0, target_fold=math.radians(120), path=pm, bevel=False)
+    hybrid = make_plan(cpm, "offset-crease", thickness=1.0, target_fold=math.radians(120), path=pm)
+    assert hybrid.meta["bevels"] > 0 and hybrid.meta["reachable"] == pytest.approx(math.radians(120))
+    assert max(thick_closure_error(hybrid, s) for s in pm.states) < 1e-9
+    assert clearance(bare, pm).first_contact[0] < 0.1
+    rep = clearance(hybrid, pm)
+    assert rep.first_contact is None and rep.min_clearance > 0

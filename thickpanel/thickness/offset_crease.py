@@ -28,8 +28,17 @@ from ..errors import ThicknessError
 from ..pattern import cid, pid, vid
 from ..poses import rotation_about_line
 from ..tolerances import DEFAULT_TOL, Tolerances
-from .common import check_target, face_hinge_range, make_hinge, panel_thicknesses, require_folding, sector_angles
-from .plan import Slab, ThickPlan
+from .common import (
+    check_target,
+    edge_cut,
+    face_hinge_range,
+    inradius,
+    make_hinge,
+    panel_thicknesses,
+    require_folding,
+    sector_angles,
+)
+from .plan import CutPlane, Slab, ThickPlan
 
 if TYPE_CHECKING:
     from ..pattern import CreasePattern
@@ -226,6 +235,7 @@ def build(
     path: FoldPath | None = None,
     enforce_ratio: bool = True,
     bits: Any = None,
+    bevel: bool | str = "auto",
     tol: Tolerances = DEFAULT_TOL,
 ) -> ThickPlan:
     """Offset-crease slabs for a pattern of flat-foldable degree-4 vertices.
@@ -239,6 +249,11 @@ def build(
         Zero-thickness path; required, its angles select the branch and give the reachable fold.
     bits : sequence of int, optional
         Force the per-panel face choice instead of searching.
+    bevel : bool or "auto"
+        Hybrid with the tapered rule: bevel the slabs of creases whose hinge faces would stop them
+        before their final fold. ``"auto"`` (default) bevels where a bevel fits and leaves the
+        other creases to limit the reachable fold; True raises when a bevel does not fit
+        (flat folds, bevels wider than the panel); False keeps the pure face-hinge design.
     """
     target = check_target(target_fold, method=NAME)
     fc = require_folding(pattern, NAME)
@@ -285,10 +300,51 @@ def build(
         )
     reach, b, z0, hc, ranges, faces = best
     shift = -float(np.median(z0 + t / 2.0))
+    cuts: list[list[CutPlane]] = [[] for _ in range(pattern.n_panels)]
+    final = path.states[-1].angles
+    n_bevels = 0
+    if bevel:
+        # hybrid with the tapered rule (Tachi 2011; hybrids in Lang et al. 2018): where the hinge
+        # faces stop a crease before its final fold, bevel both slabs by the bisector plane through
+        # the hinge axis at that fold
+        cp = pattern.crease_panels
+        for c in fc:
+            rho = float(final[c])
+            lo, hi = ranges[c]
+            if lo - 1e-12 <= rho <= hi + 1e-12 or abs(rho) <= tol.angle:
+                continue
+            why = ""
+            if abs(rho) >= math.pi - tol.angle:
+                why = f"crease {cid(c)} folds flat; a bevel cannot reach a flat fold (Tachi 2011)"
+            side = 1 if rho > 0 else -1
+            zh = float(hc[c] + shift)
+            new: list[tuple[int, CutPlane]] = []
+            for p in (int(cp[c, 0]), int(cp[c, 1])):
+                far = (z0[p] + t[p] + shift - zh) if side > 0 else (zh - z0[p] - shift)
+                if far <= tol.length or why:
+                    continue  # all of this slab lies on the outer side of the axis
+                w = far * math.tan(abs(rho) / 2.0)
+                r = inradius(pattern.panel_polygon(p))
+                if w > r:
+                    why = (
+                        f"bevel of {w:.4g} mm on panel {pid(p)} along crease {cid(c)} exceeds the panel's inradius "
+                        f"{r:.4g} mm (fold {math.degrees(abs(rho)):.4g} deg)"
+                    )
+                    continue
+                new.append((p, edge_cut(pattern, p, c, angle=rho, z_ref=zh, side=side, label=f"bevel {cid(c)}")))
+            if why:
+                if bevel is True:
+                    raise ThicknessError(f"method {NAME}: {why}")
+                continue  # "auto": leave the crease unbevelled; it limits the reachable fold
+            for p, cut in new:
+                cuts[p].append(cut)
+            ranges[c] = (0.0, abs(rho)) if rho > 0 else (-abs(rho), 0.0)
+            n_bevels += 1
+        reach = _reach_from_ranges(path, ranges, target)
     slabs = []
     for p in range(pattern.n_panels):
         poly = tuple((float(x), float(y)) for x, y in pattern.panel_polygon(p))
-        slabs.append(Slab(p, poly, float(z0[p] + shift), float(z0[p] + t[p] + shift)))
+        slabs.append(Slab(p, poly, float(z0[p] + shift), float(z0[p] + t[p] + shift), cuts=tuple(cuts[p])))
     hinges = []
     for c in fc:
         hinges.append(
@@ -297,16 +353,27 @@ def build(
     plan = ThickPlan(
         pattern, NAME, tuple(slabs), tuple(hinges), target,
         notes=(
-            f"reachable fold {math.degrees(reach):.4g} deg of {math.degrees(target):.4g} deg",
+            f"reachable fold {math.degrees(reach):.4g} deg of {math.degrees(target):.4g} deg"
+            + (f"; {n_bevels} creases bevelled where their hinge faces would stop them" if n_bevels else ""),
             "thicknesses in the ratio sin(a)/sin(b); hinges on panel faces",
         ),
-        meta={"reachable": reach, "bits": b, "thickness": t},
+        meta={"reachable": reach, "bits": b, "thickness": t, "bevels": n_bevels},
     )
     err = max(thick_closure_error(plan, s) for s in states)
     plan.meta["closure_error"] = err
     if bits is None and err > 1e6 * tol.closure:
         raise ThicknessError(f"method {NAME}: thick vertex loops do not close (error {err:.3g})")
     return plan
+
+
+def _reach_from_ranges(path: FoldPath, ranges: dict[int, tuple[float, float]], target: float) -> float:
+    """Fold (rad) reached along ``path`` before some crease leaves its fold range."""
+    for st in path.states:
+        for c, (lo, hi) in ranges.items():
+            a = float(st.angles[c])
+            if a < lo - 1e-12 or a > hi + 1e-12:
+                return (float(st.t) if math.isfinite(st.t) else 0.0) * target
+    return target
 
 
 def _search_bits(
