@@ -119,7 +119,7 @@ def test_well_formed_and_self_contained(page):
 def test_sections_and_safety(page):
     c = Checker()
     c.feed(page)
-    for h in ("Checks", "Crease pattern", "Fold sequence", "Clearance over the fold", "Stowed envelope",
+    for h in ("Key figures", "Checks", "Crease pattern", "Fold sequence", "Clearance over the fold", "Stowed envelope",
               "Bill of materials", "Thickness method", "Hinges", "Safety cautions"):
         assert h in c.headings
     for caution in SAFETY:

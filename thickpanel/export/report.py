@@ -289,6 +289,37 @@ def _hinge_section(res: Any) -> str:
     return "\n".join(out)
 
 
+def _key_figures(res: Any, m: dict[str, Any]) -> str:
+    d = res.design
+
+    def fmt(key: str, unit: str = "", digits: int = 4) -> str:
+        v = m.get(key)
+        if v is None:
+            return "-"
+        if isinstance(v, list):
+            return " x ".join(f"{x:.{digits}g}" for x in v) + (f" {unit}" if unit else "")
+        if isinstance(v, float):
+            return f"{v:.{digits}g}" + (f" {unit}" if unit else "")
+        return str(v) + (f" {unit}" if unit else "")
+
+    rows = [
+        ["panels / creases", f"{m.get('panels', '-')} / {m.get('creases', '-')}"],
+        ["panel thickness", f"{d.panels.thickness:g} mm" + (" (with overrides)" if d.panels.overrides else "")],
+        ["material", d.panels.material or "unspecified"],
+        ["thickness method", fmt("method")],
+        ["hinge style", d.hinge.style],
+        ["rigid folding", fmt("rigid")],
+        ["fold reached", fmt("reached_fold_deg", "deg") + f" of {d.fold.target_deg:g} deg"],
+        ["minimum clearance", fmt("min_clearance_mm", "mm")],
+        ["deployed envelope", fmt("deployed_envelope_mm", "mm")],
+        ["stowed envelope", fmt("stowed_envelope_mm", "mm")],
+        ["packing ratio", fmt("packing_ratio", "", 3)],
+        ["parts", fmt("parts")],
+        ["total mass", fmt("total_mass_g", "g")],
+    ]
+    return _table(["quantity", "value"], rows)
+
+
 def render_report(res: Any) -> str:
     """The HTML text of the report for a :class:`~thickpanel.build.BuildResult`."""
     d = res.design
@@ -307,6 +338,8 @@ def render_report(res: Any) -> str:
         f"{d.fold.target_deg:g} deg. All lengths in mm, angles in degrees.</p>",
         f'<p class="verdict">Verdict: {verdict}</p>',
         '<div class="caution"><b>Safety.</b> ' + _e(SAFETY[0]) + " " + _e(SAFETY[2]) + "</div>",
+        "<h2>Key figures</h2>",
+        _key_figures(res, m),
         "<h2>Checks</h2>",
         _checks_table(s["checks"]),
         "<h2>Crease pattern</h2>",
