@@ -70,6 +70,9 @@ def test_new_list_and_refuse_overwrite(starter):
     assert {"miura-reference", "shelter-roof", "lamp-shade", "reflector-backing"} <= set(names)
     r = run("new")
     assert r.returncode == 2 and "new needs NAME" in r.stderr
+    r = run("new", str(starter.with_name("lamp-shade")), "--json")  # NAME picks the scenario of that name
+    assert r.returncode == 0 and strict_json(r.stdout)["scenario"] == "lamp-shade"
+    assert (starter.parent / "lamp-shade-band.json").is_file()  # the pattern file it imports comes along
     r = run("new", str(starter))
     assert r.returncode == 2
     assert "already exists" in r.stderr and "Traceback" not in r.stderr

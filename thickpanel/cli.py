@@ -72,8 +72,9 @@ def _parser() -> argparse.ArgumentParser:
     sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
     n = sub.add_parser("new", parents=[common], help="write a commented starter design file")
     n.add_argument("name", nargs="?", help="file to write (.toml added when missing); its stem names the design")
-    n.add_argument("--scenario", default="miura-reference",
-                   help="bundled scenario to start from (see --list; default: miura-reference)")
+    n.add_argument("--scenario", default=None,
+                   help="bundled scenario to start from (see --list); default: the scenario named NAME "
+                   "if there is one, else miura-reference")
     n.add_argument("--list", action="store_true", help="list the bundled scenarios and exit")
     n.add_argument("--force", action="store_true", help="overwrite an existing file")
     c = sub.add_parser("check", parents=[common], help="validate and check a design; no files written")
@@ -127,6 +128,9 @@ def _new(args: argparse.Namespace) -> int:
         return EXIT_OK
     if not args.name:
         raise _InputError("new needs NAME, the design file to write (or --list to see the scenarios)")
+    if args.scenario is None:
+        stem = Path(args.name).stem
+        args.scenario = stem if stem in names else "miura-reference"
     if args.scenario not in names:
         from .design import suggest
 
