@@ -18,14 +18,20 @@ current crease direction ``omega_k = R1 ... R(k-1) u_k``.
 
 Path following
 --------------
-Predictor on the constraint null space (the driven increment continued by least squares),
-Newton corrector with the driver fixed (Gauss-Newton with a tiny Levenberg-Marquardt damping so
-that patterns with several degrees of freedom take the minimum-norm correction), adaptive step
-size. The first step off flat uses the closed-form degree-4 relations when every interior vertex
-is a flat-foldable degree-4 vertex (see :mod:`thickpanel.verdicts`); then the closed form is the
-predictor all the way and the corrector only confirms it. Otherwise the first step starts from the
-crease assignment's signs (or the pattern's target angles). Every returned state is checked with
-:func:`thickpanel.poses.closure_error` against ``tol.closure``.
+Predictor on the constraint null space (the driven increment continued by least squares; with
+several degrees of freedom, the start direction projected on the null space so every crease keeps
+folding in its assigned sense), Newton corrector with the driver fixed (Gauss-Newton with a tiny
+Levenberg-Marquardt damping, minimum-norm corrections), adaptive step size, and no crease may fold
+against its mountain/valley assignment (that is another branch). The first step off flat uses the
+closed-form degree-4 relations when every interior vertex is a flat-foldable degree-4 vertex (see
+:mod:`thickpanel.verdicts`); the closed form is then the predictor all the way and the corrector
+only confirms it. Otherwise the first step starts from the assignment's signs (or the pattern's
+target angles) projected on the flat-state null space, with a few seeded variations before a lock
+is reported. Every returned state is checked with :func:`thickpanel.poses.closure_error` against
+``tol.closure``. The constraint system itself is :class:`thickpanel.loop_model.LoopModel`.
+
+Deviation from the issue text: a pattern without interior vertices but with folding creases (an
+accordion, a single fold) is not an error; its fold lines are independent hinges and fold together.
 """
 
 from __future__ import annotations
@@ -39,7 +45,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .errors import FoldError
-from .loop_model import LoopModel, loop_model
+from .loop_model import _DAMPING, LoopModel, _correct, _Factor, loop_model
 from .pattern import CreasePattern, cid
 from .poses import FoldPath, FoldState
 from .tolerances import DEFAULT_TOL, Tolerances
@@ -66,134 +72,10 @@ DEFAULT_FULL_FOLD: float = float(np.deg2rad(175.0))
 angles say otherwise: short of a full flat fold (pi), where rigid panels meet and the Jacobian of
 every pattern becomes singular."""
 
-_MAX_NEWTON = 16  # corrector iterations per step before the step is halved
 _MIN_STEP = 1e-3  # rad: smallest driver step before the path is declared locked
 _FIRST_STEP = float(np.deg2rad(2.0))  # rad: first trial step off flat
 _START_TRIES = 6  # start directions tried off flat by the general solver before it reports a lock
 _SIGN_SLACK = 1e3  # x tol.angle: a crease this far against its assignment is on another branch
-_DAMPING = 1e-10  # relative Levenberg-Marquardt damping (picks the minimum-norm correction)
-
-
-# ---------------------------------------------------------------------------------------- solver
-@dataclass
-class _Solve:
-    """Result of one corrector run."""
-
-    x: FloatArray
-    ok: bool
-    iters: int
-    residual: float
-    factor: Any = None  # last factorisation used (reused for the next tangent)
-
-
-class _Factor:
-    """Factorised damped normal equations of the Jacobian with one unknown held fixed."""
-
-    def __init__(self, J: sp.csr_matrix, fixed: int, damping: float = _DAMPING) -> None:
-        n = J.shape[1]
-        self.free = np.ones(n, dtype=bool)
-        self.free[fixed] = False
-        self.fixed = fixed
-        self.J = J
-        self.A = J[:, self.free].tocsc()
-        self.col = J[:, [fixed]].toarray().ravel()
-        self.N = (self.A.T @ self.A).tocsc()
-        self.scale = (float(self.N.diagonal().max()) if self.N.shape[0] else 1.0) or 1.0
-        self.lu: Any = None
-        self.refactor(damping)
-
-    def refactor(self, damping: float) -> None:
-        self.damping = damping
-        if not self.N.shape[0]:
-            return
-        N = self.N + sp.identity(self.N.shape[0], format="csc") * (damping * self.scale)
-        try:
-            self.lu = spla.splu(N, permc_spec="MMD_AT_PLUS_A")
-        except RuntimeError:
-            self.lu = None
-
-    def solve(self, b: FloatArray) -> FloatArray | None:
-        """Damped least-squares step for residual-space vector ``b`` (free unknowns only)."""
-        if not self.free.any():
-            return np.zeros(0)
-        if self.lu is None:
-            return None
-        out = self.lu.solve(self.A.T @ b)
-        return out if np.all(np.isfinite(out)) else None
-
-    def tangent(self) -> FloatArray | None:
-        """Null-space direction with unit rate of the fixed unknown."""
-        d = self.solve(-self.col)
-        if d is None:
-            return None
-        t = np.zeros(len(self.free))
-        t[self.fixed] = 1.0
-        t[self.free] = d
-        return t
-
-
-def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, factor: _Factor | None = None) -> _Solve:
-    """Newton corrector with unknown ``fixed`` held at its value in ``x0``.
-
-    Gauss-Newton on the loop residuals with Levenberg-Marquardt damping: the damping is tiny (a
-    minimum-norm correction for patterns with several degrees of freedom) while the residual
-    falls, and grows when a step would raise it, which keeps the first steps off the singular
-    flat state from running away. A run that stalls at a non-zero residual is a least-squares
-    point, not a fold state, and fails.
-    """
-    x = x0.copy()
-    goal = tol.closure * 1e-3
-    r, _ = model.residual_jacobian(x, jac=False)
-    res = float(np.abs(r).max()) if len(r) else 0.0
-    norm = float(np.linalg.norm(r))
-    slow = 0
-    fac = factor if factor is not None and factor.fixed == fixed else None
-    chord = fac is not None
-    for it in range(_MAX_NEWTON):
-        if not np.isfinite(res):
-            return _Solve(x, False, it, res, fac)
-        if res <= goal:
-            return _Solve(x, True, it, res, fac)
-        if fac is None or not chord:
-            _, J = model.residual_jacobian(x)
-            assert J is not None
-            damp = fac.damping / 10 if fac is not None and fac.damping > _DAMPING else _DAMPING
-            fac = _Factor(J, fixed, damping=damp)
-        for _ in range(8):
-            dx = fac.solve(-r)
-            if dx is None:
-                return _Solve(x, False, it, res, fac)
-            xt = x.copy()
-            xt[fac.free] += dx
-            rt, _ = model.residual_jacobian(xt, jac=False)
-            nt = float(np.linalg.norm(rt))
-            if np.isfinite(nt) and nt < norm:
-                break
-            fac.refactor(fac.damping * 100)
-        else:
-            return _Solve(x, False, it, res, fac)
-        slow = slow + 1 if nt > 0.9 * norm else 0
-        chord = nt < 0.25 * norm  # fast enough: keep this factorisation for the next step
-        x, r, norm = xt, rt, nt
-        res = float(np.abs(r).max())
-        if slow >= 3:
-            return _Solve(x, res <= goal, it, res, fac)
-    return _Solve(x, res <= goal, _MAX_NEWTON, res, fac)
-
-
-def _lsq(A: sp.csr_matrix, b: FloatArray) -> FloatArray | None:
-    """Damped least-squares solution of ``A x = b`` (minimum norm where ``A`` is rank deficient)."""
-    if A.shape[1] == 0:
-        return np.zeros(0)
-    N = (A.T @ A).tocsc()
-    scale = float(N.diagonal().max()) or 1.0
-    N = N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale)
-    try:
-        out = spla.spsolve(N, A.T @ b, permc_spec="MMD_AT_PLUS_A")
-    except RuntimeError:
-        return None
-    out = np.asarray(out, dtype=float)
-    return out if np.all(np.isfinite(out)) else None
 
 
 # ---------------------------------------------------------------------------------------- paths

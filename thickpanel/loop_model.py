@@ -1,4 +1,5 @@
-"""The loop-closure constraint system of a crease pattern (used by :mod:`thickpanel.kinematics`).
+"""The loop-closure constraint system of a crease pattern and its Newton corrector (used by
+:mod:`thickpanel.kinematics`).
 
 Unknowns are the fold angles of the folding creases (mountain, valley and seams). Per interior
 vertex, the product of the rotations about its flat-state crease directions (counter-clockwise,
@@ -15,16 +16,22 @@ from __future__ import annotations
 import weakref
 from dataclasses import dataclass
 from functools import cached_property
+from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
+import scipy.sparse.linalg as spla
 
 from .errors import FoldError
 from .pattern import CreasePattern
 from .poses import FoldState, closure_error, compose_poses, default_base_panel, edge_transforms, spanning_tree
+from .tolerances import Tolerances
 from .typing import FloatArray, IntArray
 
 __all__ = ["LoopModel", "loop_model"]
+
+_MAX_NEWTON = 16  # corrector iterations per step before the step is halved
+_DAMPING = 1e-10  # relative Levenberg-Marquardt damping (picks the minimum-norm correction)
 
 
 @dataclass(eq=False)
@@ -318,3 +325,125 @@ def _fundamental_cycles(g: object, tree: list[tuple[int, int, int]]) -> list[Int
         steps = up_a + list(reversed(up_b)) + [(b, a, int(d["crease"]))]
         out.append(np.array(steps, dtype=np.int64))
     return out
+
+
+# ---------------------------------------------------------------------------------------- corrector
+@dataclass
+class _Solve:
+    """Result of one corrector run."""
+
+    x: FloatArray
+    ok: bool
+    iters: int
+    residual: float
+    factor: Any = None  # last factorisation used (reused for the next tangent)
+
+
+class _Factor:
+    """Factorised damped normal equations of the Jacobian with one unknown held fixed."""
+
+    def __init__(self, J: sp.csr_matrix, fixed: int, damping: float = _DAMPING) -> None:
+        n = J.shape[1]
+        self.free = np.ones(n, dtype=bool)
+        self.free[fixed] = False
+        self.fixed = fixed
+        self.J = J
+        self.A = J[:, self.free].tocsc()
+        self.col = J[:, [fixed]].toarray().ravel()
+        self.N = (self.A.T @ self.A).tocsc()
+        self.scale = (float(self.N.diagonal().max()) if self.N.shape[0] else 1.0) or 1.0
+        self.lu: Any = None
+        self.refactor(damping)
+
+    def refactor(self, damping: float) -> None:
+        self.damping = damping
+        if not self.N.shape[0]:
+            return
+        N = self.N + sp.identity(self.N.shape[0], format="csc") * (damping * self.scale)
+        try:
+            self.lu = spla.splu(N, permc_spec="MMD_AT_PLUS_A")
+        except RuntimeError:
+            self.lu = None
+
+    def solve(self, b: FloatArray) -> FloatArray | None:
+        """Damped least-squares step for residual-space vector ``b`` (free unknowns only)."""
+        if not self.free.any():
+            return np.zeros(0)
+        if self.lu is None:
+            return None
+        out = self.lu.solve(self.A.T @ b)
+        return out if np.all(np.isfinite(out)) else None
+
+    def tangent(self) -> FloatArray | None:
+        """Null-space direction with unit rate of the fixed unknown."""
+        d = self.solve(-self.col)
+        if d is None:
+            return None
+        t = np.zeros(len(self.free))
+        t[self.fixed] = 1.0
+        t[self.free] = d
+        return t
+
+
+def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, factor: _Factor | None = None) -> _Solve:
+    """Newton corrector with unknown ``fixed`` held at its value in ``x0``.
+
+    Gauss-Newton on the loop residuals with Levenberg-Marquardt damping: the damping is tiny (a
+    minimum-norm correction for patterns with several degrees of freedom) while the residual
+    falls, and grows when a step would raise it, which keeps the first steps off the singular
+    flat state from running away. A run that stalls at a non-zero residual is a least-squares
+    point, not a fold state, and fails.
+    """
+    x = x0.copy()
+    goal = tol.closure * 1e-3
+    r, _ = model.residual_jacobian(x, jac=False)
+    res = float(np.abs(r).max()) if len(r) else 0.0
+    norm = float(np.linalg.norm(r))
+    slow = 0
+    fac = factor if factor is not None and factor.fixed == fixed else None
+    chord = fac is not None
+    for it in range(_MAX_NEWTON):
+        if not np.isfinite(res):
+            return _Solve(x, False, it, res, fac)
+        if res <= goal:
+            return _Solve(x, True, it, res, fac)
+        if fac is None or not chord:
+            _, J = model.residual_jacobian(x)
+            assert J is not None
+            damp = fac.damping / 10 if fac is not None and fac.damping > _DAMPING else _DAMPING
+            fac = _Factor(J, fixed, damping=damp)
+        for _ in range(8):
+            dx = fac.solve(-r)
+            if dx is None:
+                return _Solve(x, False, it, res, fac)
+            xt = x.copy()
+            xt[fac.free] += dx
+            rt, _ = model.residual_jacobian(xt, jac=False)
+            nt = float(np.linalg.norm(rt))
+            if np.isfinite(nt) and nt < norm:
+                break
+            fac.refactor(fac.damping * 100)
+        else:
+            return _Solve(x, False, it, res, fac)
+        slow = slow + 1 if nt > 0.9 * norm else 0
+        chord = nt < 0.25 * norm  # fast enough: keep this factorisation for the next step
+        x, r, norm = xt, rt, nt
+        res = float(np.abs(r).max())
+        if slow >= 3:
+            return _Solve(x, res <= goal, it, res, fac)
+    return _Solve(x, res <= goal, _MAX_NEWTON, res, fac)
+
+
+def _lsq(A: sp.csr_matrix, b: FloatArray) -> FloatArray | None:
+    """Damped least-squares solution of ``A x = b`` (minimum norm where ``A`` is rank deficient)."""
+    if A.shape[1] == 0:
+        return np.zeros(0)
+    N = (A.T @ A).tocsc()
+    scale = float(N.diagonal().max()) or 1.0
+    N = N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale)
+    try:
+        out = spla.spsolve(N, A.T @ b, permc_spec="MMD_AT_PLUS_A")
+    except RuntimeError:
+        return None
+    out = np.asarray(out, dtype=float)
+    return out if np.all(np.isfinite(out)) else None

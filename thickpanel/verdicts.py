@@ -270,7 +270,7 @@ def nullity(J: sp.csr_matrix, *, rel: float = 1e-7) -> int:
 
 def locked_where(model: LoopModel, direction: FloatArray, *, tol: Tolerances = DEFAULT_TOL) -> list[str]:
     """Vertices whose loops stay open at the least-squares fold nearest ``direction`` (largest first)."""
-    from .kinematics import _lsq
+    from .loop_model import _lsq
 
     x = direction * (PROBE_FOLD / max(float(np.abs(direction).max()), 1e-300))
     k = int(np.argmax(np.abs(x)))
