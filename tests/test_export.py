@@ -307,3 +307,14 @@ def test_export_failing_halfway_leaves_no_partial_files(knuckle_set, tmp_path, m
     with pytest.raises(ExportError, match="no space left"):
         export_parts(ps, tmp_path / "two", ["bom", "dxf", "metrics"])
     assert [p for p in (tmp_path / "two").rglob("*") if p.is_file()] == []
+
+
+def test_step_schema_choice(knuckle_set):
+    # ISO 10303-21 FILE_SCHEMA names: AP214 AUTOMOTIVE_DESIGN, AP242 managed model based 3D
+    from thickpanel.export.step import step_bytes
+
+    ps, _ = knuckle_set
+    items = [(p.name, p.pieces, None) for p in ps.parts]
+    assert b"AP242_MANAGED_MODEL_BASED_3D_ENGINEERING" in step_bytes(items, schema="AP242")
+    with pytest.raises(ExportError, match="schema 'AP999'"):
+        step_bytes(items, schema="AP999")
