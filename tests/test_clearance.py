@@ -162,3 +162,21 @@ def test_penetration_agrees_with_opencascade_common_volume():
             assert (vol > 1e-6) == (val < 0), (method, a, b, val, vol)
             checked[val < 0] += 1
     assert checked[True] >= 5 and checked[False] >= 5
+
+
+def test_contact_stop_ends_a_fold_path_at_first_contact():
+    # A tapered plan bevelled for 100 deg meets at 100 deg (Tachi 2011); used as the fold path's
+    # stop hook it ends the zero-thickness path there (kinematics contract: stop_reason "contact").
+    from thickpanel.clearance import contact_stop
+    from thickpanel.kinematics import fold_path
+
+    cp = single_crease()
+    rho = math.radians(100)
+    plan = make_plan(cp, "tapered", thickness=2.0, target_fold=rho, path=hinge_path(cp, rho))
+    stop = contact_stop(plan)
+    assert not stop(hinge_path(cp, math.radians(99), 2).states[-1])
+    assert stop(hinge_path(cp, math.radians(101), 2).states[-1])
+    path = fold_path(cp, target=math.radians(150), n_states=31, stop_when=stop)
+    assert path.stop_reason == "contact"
+    last = float(np.max(np.abs(path.states[-1].angles)))
+    assert math.radians(100) <= last <= math.radians(100) + math.radians(150) / 30 + 1e-9

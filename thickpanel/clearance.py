@@ -27,6 +27,7 @@ import io
 import math
 import os
 import tempfile
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -43,7 +44,15 @@ if TYPE_CHECKING:
     from .poses import FoldPath, FoldState
     from .thickness.plan import Slab, ThickPlan
 
-__all__ = ["StateRow", "ClearanceReport", "slab_pieces", "plan_pieces", "clearance", "neighbour_keys"]
+__all__ = [
+    "StateRow",
+    "ClearanceReport",
+    "slab_pieces",
+    "plan_pieces",
+    "clearance",
+    "neighbour_keys",
+    "contact_stop",
+]
 
 
 @dataclass(frozen=True)
@@ -438,3 +447,23 @@ def clearance(
         margin=float(margin),
         tol=tol,
     )
+
+
+def contact_stop(
+    plan: ThickPlan, *, margin: float | None = None, tol: Tolerances = DEFAULT_TOL
+) -> Callable[[FoldState], bool]:
+    """A ``stop_when`` callable for :func:`thickpanel.kinematics.fold_path`: True at the first
+    state where two slabs of ``plan`` touch or penetrate (same touching policy as :func:`clearance`).
+    """
+    pieces = plan_pieces(plan, tol=tol)
+    arrays = pack_pieces(pieces)
+    nkeys = neighbour_keys(plan)
+    on_ref = _hinges_on_reference(plan, tol)
+    m = float(max(s.thickness for s in plan.slabs)) if margin is None else float(margin)
+    n_panels = plan.pattern.n_panels
+
+    def stop(state: FoldState) -> bool:
+        r = _measure(arrays, pieces, _plan_poses(plan, state, on_ref), nkeys, n_panels, m, tol)
+        return bool(len(r.values) and float(r.values.min()) <= tol.contact)
+
+    return stop
