@@ -51,7 +51,8 @@ class FlexureHinge:
         mat = ctx.materials[0]
         if mat.allowable_strain is None:
             raise HingeError(
-                f"{self.name} hinge on {ctx.cid}: material {mat.key!r} has no allowable strain for "
+                f"{self.name} hinge on {ctx.cid}: material {mat.key or 'unspecified'!r} has no "
+                f"allowable strain for "
                 f"a living hinge; use a material with one (pp, petg, nylon-12)"
             )
         if t >= ctx.thickness:

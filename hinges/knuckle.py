@@ -149,7 +149,8 @@ class KnuckleHinge:
         c = self.clearance_mm if self.clearance_mm is not None else ctx.materials[0].printed_clearance
         if c is None:
             raise HingeError(
-                f"{self.name} hinge on {ctx.cid}: material {ctx.materials[0].key!r} has no printed "
+                f"{self.name} hinge on {ctx.cid}: material {ctx.materials[0].key or 'unspecified'!r} "
+                f"has no printed "
                 f"clearance; give clearance_mm"
             )
         res = positive(self.name, "printer_resolution_mm", self.printer_resolution_mm)

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 from thickpanel.errors import HingeError
 
-__all__ = ["Material", "MATERIALS", "get_material"]
+__all__ = ["Material", "MATERIALS", "UNSPECIFIED", "get_material"]
 
 
 @dataclass(frozen=True)
@@ -92,8 +92,14 @@ MATERIALS: dict[str, Material] = {
 }  # fmt: skip
 
 
+#: Stand-in for "no material given" (key ""): no density, so masses are left blank.
+UNSPECIFIED = Material("", "unspecified", float("nan"), None, None, "machined",
+                       "no material given in the design")
+
+
 def get_material(key: str, *, who: str = "") -> Material:
-    """The material ``key``; an unknown key raises :class:`HingeError` listing the known keys.
+    """The material ``key`` (``""`` gives :data:`UNSPECIFIED`); an unknown key raises
+    :class:`HingeError` listing the known keys.
 
     Parameters
     ----------
@@ -101,6 +107,8 @@ def get_material(key: str, *, who: str = "") -> Material:
     who : str
         Part or hinge id for the message (``P017``, ``C042``).
     """
+    if key == "":
+        return UNSPECIFIED
     try:
         return MATERIALS[key]
     except KeyError:

@@ -25,7 +25,7 @@ def knuckle_set():
     angles = np.zeros(plan.pattern.n_creases)
     angles[6] = math.pi / 2
     state = fold_state_from_angles(plan.pattern, angles, base=0)
-    return build_parts(plan, hinge_style="knuckle"), state
+    return build_parts(plan, hinge_style="knuckle", material="al-6061-t6"), state
 
 
 @pytest.fixture(scope="module")
@@ -318,3 +318,12 @@ def test_step_schema_choice(knuckle_set):
     assert b"AP242_MANAGED_MODEL_BASED_3D_ENGINEERING" in step_bytes(items, schema="AP242")
     with pytest.raises(ExportError, match="schema 'AP999'"):
         step_bytes(items, schema="AP999")
+
+
+def test_no_material_gives_blank_masses(tmp_path):
+    ps = build_parts(plain_plan(two_panels(), 3.0, 0.5))
+    assert ps["P000"].material == "" and ps["P000"].mass is None
+    export_parts(ps, tmp_path, ["bom", "metrics"])
+    rows = list(csv.DictReader((tmp_path / "bom.csv").read_text().splitlines()[1:]))
+    assert rows[0]["mass_g"] == ""
+    assert json.loads((tmp_path / "metrics.json").read_text())["total_mass_g"] is None

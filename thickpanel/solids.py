@@ -42,10 +42,7 @@ if TYPE_CHECKING:
     from .poses import FoldState
     from .thickness.plan import Slab, ThickPlan
 
-__all__ = ["Part", "PartSet", "build_parts", "DEFAULT_MATERIAL"]
-
-#: Material of slabs that name none (common practice for machined panels).
-DEFAULT_MATERIAL = "al-6061-t6"
+__all__ = ["Part", "PartSet", "build_parts"]
 
 
 @dataclass
@@ -102,9 +99,10 @@ class Part:
     pieces: list[tuple[tuple, TopoDS_Shape, FloatArray]] = field(default_factory=list)
 
     @property
-    def mass(self) -> float:
-        """Mass in g (volume mm^3 x density g/cm^3 / 1000)."""
-        return self.volume * get_material(self.material, who=self.name).density / 1000.0
+    def mass(self) -> float | None:
+        """Mass in g (volume mm^3 x density g/cm^3 / 1000); None when no material is given."""
+        rho = get_material(self.material, who=self.name).density
+        return None if math.isnan(rho) else self.volume * rho / 1000.0
 
     @cached_property
     def flat_location(self) -> FloatArray:
@@ -225,7 +223,8 @@ def build_parts(
     state : FoldState, optional
         Places ``Part.shape``; the flat sheet when None.
     material : str, optional
-        Material key for slabs that name none (default :data:`DEFAULT_MATERIAL`).
+        Material key for slabs that name none; with neither, parts have no material and no
+        mass (hinge styles that need a material then say so).
     validate : str
         ``full`` (default): ``BRepCheck_Analyzer`` on every distinct solid. ``profile``: plain
         (untrimmed) panel prisms are checked through their outline face (``BRepCheck``) and the
@@ -245,7 +244,7 @@ def build_parts(
     slabs = {s.panel: s for s in plan.slabs}
     mats: dict[int, str] = {}
     for s in plan.slabs:
-        key = s.material or material or DEFAULT_MATERIAL
+        key = s.material or material or ""
         get_material(key, who=pid(s.panel))
         mats[s.panel] = key
     designs: list[HingeDesign] = []
@@ -457,7 +456,7 @@ def _extra_part(ex: ExtraPart, fr: HingeFrame, panel: int, cache: _Cache,
     shape = frame_shape if poses is None else occ.moved(frame_shape, poses[panel])
     diameter = float(ex.attrs.get("diameter", 0.0))
     return Part(
-        ex.name, ex.kind, shape, frame_shape, ex.material or DEFAULT_MATERIAL, vol, panel, thick,
+        ex.name, ex.kind, shape, frame_shape, ex.material, vol, panel, thick,
         float(polygon_area(outline)) if outline is not None else 0.0, outline, [], [], 0,
         (diameter,) if diameter else (), dict(ex.attrs), pieces,
     )
@@ -472,6 +471,6 @@ def _sheet_part(sp: Any, plan: ThickPlan, state: FoldState | None,
         raise GeometryError(f"{sp.name}: membrane solid is invalid (BRepCheck)")
     panel = state.base_panel if state is not None else plan.slabs[0].panel
     shape = body if poses is None else occ.moved(body, poses[panel])
-    return Part(sp.name, sp.kind, shape, body, sp.material or DEFAULT_MATERIAL, occ.volume(body),
+    return Part(sp.name, sp.kind, shape, body, sp.material, occ.volume(body),
                 panel, sp.z1 - sp.z0, float(polygon_area(outline)), outline, [], [], 0, (),
                 dict(sp.attrs), [(("unique", sp.name), body, np.eye(4))])

@@ -39,7 +39,7 @@ def bom_rows(partset: PartSet) -> list[dict[str, Any]]:
             "thickness_mm": round(p.thickness, 4),
             "area_mm2": round(p.area, 4),
             "volume_mm3": round(p.volume, 4),
-            "mass_g": round(p.mass, 4),
+            "mass_g": None if p.mass is None else round(p.mass, 4),
             "hinge_count": p.hinge_count,
             "pin_diameters_mm": " ".join(f"{d:g}" for d in p.pins),
             "length_mm": round(float(p.attrs.get("length", 0.0)), 4),
@@ -62,11 +62,14 @@ def bom_csv_bytes(partset: PartSet) -> bytes:
 def bom_json_bytes(partset: PartSet) -> bytes:
     """JSON: caution, units, part rows and totals per kind."""
     rows = bom_rows(partset)
-    totals: dict[str, dict[str, float]] = {}
+    totals: dict[str, dict[str, Any]] = {}
     for r in rows:
         t = totals.setdefault(r["kind"], {"count": 0, "mass_g": 0.0})
         t["count"] += 1
-        t["mass_g"] = round(t["mass_g"] + r["mass_g"], 4)
+        if r["mass_g"] is None or t["mass_g"] is None:
+            t["mass_g"] = None  # a part without material: no total
+        else:
+            t["mass_g"] = round(t["mass_g"] + r["mass_g"], 4)
     doc = {"caution": CAUTION, "units": {"length": "mm", "mass": "g"},
            "hinge_style": partset.hinge_style, "parts": rows, "totals": totals}
     return (json.dumps(doc, indent=1, sort_keys=True) + "\n").encode("utf-8")

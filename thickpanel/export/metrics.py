@@ -35,6 +35,13 @@ def _diameter(points: np.ndarray) -> float:
     return float(np.sqrt((d**2).sum(-1)).max())
 
 
+def _total_mass(partset: PartSet) -> float | None:
+    masses = [p.mass for p in partset.parts]
+    if any(m is None for m in masses):
+        return None  # some part has no material
+    return round(float(sum(m for m in masses if m is not None)), 4)
+
+
 def metrics(partset: PartSet, state: Any = None, clearance: Any = None) -> dict[str, Any]:
     """The metrics as a dict (lengths mm, areas mm^2, mass g)."""
     panels = [p for p in partset.parts if p.kind == "panel"]
@@ -57,7 +64,7 @@ def metrics(partset: PartSet, state: Any = None, clearance: Any = None) -> dict[
         "stowed_envelope_mm": [round(float(x), 4) for x in ext],
         "stowed_box_mm": [[round(float(x), 4) for x in row] for row in box],
         "packing_ratio": round(area / footprint, 6) if footprint > 0 else None,
-        "total_mass_g": round(float(sum(p.mass for p in partset.parts)), 4),
+        "total_mass_g": _total_mass(partset),
         "min_clearance_mm": None,
     }
     if clearance is not None:
