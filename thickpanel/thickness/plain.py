@@ -6,10 +6,11 @@ side of every fold meets at once. Kept to show the collisions other methods avoi
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING, Any
 
 from ..tolerances import DEFAULT_TOL, Tolerances
-from .common import check_target, final_angles, make_hinge, panel_thicknesses, require_folding, z_range
+from .common import check_target, make_hinge, panel_thicknesses, require_folding, z_range
 from .plan import Slab, ThickPlan
 
 if TYPE_CHECKING:
@@ -32,7 +33,6 @@ def build(
     target = check_target(target_fold, method=NAME)
     t = panel_thicknesses(pattern, thickness)
     fc = require_folding(pattern, NAME)
-    ang = final_angles(pattern, target, path)
     slabs = []
     for p in range(pattern.n_panels):
         z0, z1 = z_range(reference, float(t[p]))
@@ -44,10 +44,9 @@ def build(
         # the inner material meets at once unless the hinge sits on the inner face
         top_free = min(slabs[a].z1, slabs[b].z1) <= tol.length
         bottom_free = max(slabs[a].z0, slabs[b].z0) >= -tol.length
-        hi = 3.141592653589793 if top_free else 0.0
-        lo = -3.141592653589793 if bottom_free else 0.0
+        hi = math.pi if top_free else 0.0
+        lo = -math.pi if bottom_free else 0.0
         hinges.append(make_hinge(pattern, c, z=0.0, face="reference", gap=0.0, fold_range=(lo, hi)))
-    _ = ang
     return ThickPlan(
         pattern, NAME, tuple(slabs), tuple(hinges), target,
         notes=("no accommodation: slabs meet on the inner side of every fold",),
