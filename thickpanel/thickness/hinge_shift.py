@@ -12,8 +12,6 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING, Any
 
-import numpy as np
-
 from ..errors import ThicknessError
 from ..pattern import cid
 from ..tolerances import DEFAULT_TOL, Tolerances
@@ -78,7 +76,6 @@ def build(
         hinges.append(
             make_hinge(pattern, c, z=z, face=face, gap=0.0, fold_range=(0.0, rng) if valley else (-rng, 0.0))
         )
-    _ = np
     return ThickPlan(
         pattern, NAME, tuple(slabs), tuple(hinges), target,
         notes=("hinges on the face inside each fold; exact for single or parallel folds only",),

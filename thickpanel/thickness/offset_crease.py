@@ -80,14 +80,13 @@ def sine_ratio_thickness(pattern: CreasePattern, thickness: float, *, tol: Toler
     bad = np.nonzero(np.abs(res[: len(rows)]) > 1e3 * tol.angle)[0]
     if len(bad):
         k = 0
-        for kk, v in enumerate(verts):
+        for v in verts:
             k += len(pattern.vertex_creases(v))
             if k > bad[0]:
                 raise ThicknessError(
                     f"method {NAME}: the thickness ratio sin(a)/sin(b) cannot hold at vertex {vid(v)} together with "
                     f"its neighbours (log residual {res[bad[0]]:.3g}); the sheet has no consistent set of thicknesses"
                 )
-            _ = kk
     t = np.exp(x[:n])
     for fp in free:  # isolated panels: thickest value
         t[fp] = np.nan
@@ -101,7 +100,6 @@ def _panel_between(pattern: CreasePattern, v: int, c_in: int, c_out: int) -> int
     cp = pattern.crease_panels
     # crease c_in leaves v; the sector ccw of it is to the left of the ray v -> other end
     left = int(cp[c_in, 0]) if int(pattern.creases[c_in, 0]) == v else int(cp[c_in, 1])
-    _ = c_out
     return left
 
 
@@ -180,15 +178,12 @@ def _vertex_axes(
     for c in list(cs[1:]) + [cs[0]]:
         h = by_c[c]
         out = pat.vertices[pat.creases[c, 1]] - pat.vertices[pat.creases[c, 0]]
-        sgn = 1.0
         if int(pat.creases[c, 0]) != v:
             out = -out
-            sgn = -1.0
         d = np.array([out[0], out[1], 0.0]) / np.linalg.norm(out)
         pts.append(np.array([pat.vertices[v, 0], pat.vertices[v, 1], h.point[2]]))
         dirs.append(d)
         ang.append(float(angles[c]))
-        _ = sgn
     return np.array(pts), np.array(dirs), np.array(ang)
 
 
@@ -499,5 +494,4 @@ def _reach(
         if np.any(over):
             reach_t = float(st.t) if math.isfinite(st.t) else 0.0
             break
-    _ = cid
     return reach_t * target, ranges, faces
