@@ -105,13 +105,12 @@ def shape_of(pattern: Any, poses: np.ndarray) -> str:
 
 def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) -> bytes:
     """PNG of the fold states side by side (grey shading only; no mountain/valley colours)."""
-    fig = plt.figure(figsize=(8.0, 2.3), dpi=60)
-    allp = np.concatenate([np.concatenate(_panel_polys(pattern, s)) for _, s in states])
-    lo, hi = allp.min(0), allp.max(0)
-    mid, half = (lo + hi) / 2, (hi - lo).max() / 2 or 1.0
+    fig = plt.figure(figsize=(9.0, 2.6), dpi=70)
+    fig.subplots_adjust(left=0.0, right=1.0, bottom=0.0, top=0.86, wspace=0.0)
     for k, (t, poses) in enumerate(states):
         ax = fig.add_subplot(1, len(states), k + 1, projection="3d")
         polys = _panel_polys(pattern, poses)
+        pts = np.concatenate(polys)
         shade = []
         for q in polys:
             n = np.cross(q[1] - q[0], q[2] - q[0])
@@ -120,13 +119,18 @@ def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) ->
         ax.add_collection3d(
             Poly3DCollection(polys, facecolors=[(g, g, g) for g in shade], edgecolors="k", linewidths=0.3)
         )
-        for i, axis in enumerate((ax.set_xlim, ax.set_ylim, ax.set_zlim)):
-            axis(mid[i] - half, mid[i] + half)
+        lo, hi = pts.min(0), pts.max(0)
+        span = np.maximum(hi - lo, 1e-3 * float((hi - lo).max()))
+        ax.set_xlim(lo[0], lo[0] + span[0])
+        ax.set_ylim(lo[1], lo[1] + span[1])
+        ax.set_zlim(lo[2], lo[2] + span[2])
+        ax.set_box_aspect(tuple(span / span.max()))  # true proportions, each state at its own scale
+        ax.view_init(elev=28, azim=-60)
         ax.set_axis_off()
-        ax.set_title(f"t = {t:g}", fontsize=8)
+        ax.set_title(f"t = {t:g}  ({span.max():.0f} mm)", fontsize=8)
     fig.suptitle(title, fontsize=8)
     buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=60)
+    fig.savefig(buf, format="png", dpi=70)
     plt.close(fig)
     return buf.getvalue()
 
