@@ -31,7 +31,7 @@ from .design import Design, suggest
 from .errors import DesignFileError, ExportError, HingeError, PatternError, ThickpanelError
 
 __all__ = ["BuildResult", "run_pipeline", "run_check", "run_fold", "run_build", "run_report",
-           "default_out_dir", "Progress"]
+           "default_out_dir", "principal_frame", "Progress"]
 
 log = logging.getLogger("thickpanel")
 
@@ -526,13 +526,24 @@ def _where_text(where: Any) -> str:
         return f"at {where}"
 
 
+def principal_frame(pts: np.ndarray) -> np.ndarray:
+    """(k, 3) points expressed in their principal axes (largest spread first), mm.
+
+    The envelope of a folded array then does not depend on which panel the fold kept still. The
+    box is aligned with the principal axes of the corner points, not the smallest possible box.
+    """
+    c = pts - pts.mean(axis=0)
+    _, _, vt = np.linalg.svd(c, full_matrices=False)
+    return np.asarray(c @ vt.T)
+
+
 def _envelope(res: BuildResult) -> None:
-    """Deployed and stowed bounding boxes (mm) of the slabs, or of the bare panels without a plan."""
+    """Deployed and stowed boxes (mm, principal axes) of the slabs, or of the bare panels."""
     for label, t in (("deployed", 0.0), ("stowed", 1.0)):
         got = res.poses_at(t)
         if got is None:
             return
-        pts = res.corner_points(got[0])
+        pts = principal_frame(res.corner_points(got[0]))
         lo, hi = pts.min(axis=0), pts.max(axis=0)
         res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
         res.metrics["envelope_from"] = got[1]

@@ -175,11 +175,16 @@ def envelope_png(res: Any) -> bytes | None:
 
     faces = _slab_faces(res, fr[0])
     pts = np.vstack(faces)
+    # the same principal axes as the envelope figures of the summary (largest spread first)
+    mean = pts.mean(axis=0)
+    _, _, vt = np.linalg.svd(pts - mean, full_matrices=False)
+    faces = [(f - mean) @ vt.T for f in faces]
+    pts = np.vstack(faces)
     lo, hi = pts.min(axis=0), pts.max(axis=0)
     size = hi - lo
     fig = Figure(figsize=(10, 4.2), dpi=90)
-    for k, (i, j, title) in enumerate(((0, 1, "top view (x, y)"), (0, 2, "side view (x, z)"),
-                                       (1, 2, "side view (y, z)"))):
+    for k, (i, j, title) in enumerate(((0, 1, "view along axis 3"), (0, 2, "view along axis 2"),
+                                       (1, 2, "view along axis 1"))):
         ax = fig.add_subplot(1, 3, k + 1)
         for f in faces:
             ax.fill(f[:, i], f[:, j], facecolor=(0.85, 0.86, 0.9), edgecolor="black", linewidth=0.3)
@@ -190,8 +195,8 @@ def envelope_png(res: Any) -> bytes | None:
                     textcoords="offset points", ha="right", va="center", rotation=90, fontsize=9)
         ax.set_aspect("equal", adjustable="datalim")
         ax.set_title(title, fontsize=10)
-        ax.set_xlabel("xyz"[i] + " (mm)")
-        ax.set_ylabel("xyz"[j] + " (mm)")
+        ax.set_xlabel(f"axis {i + 1} (mm)")
+        ax.set_ylabel(f"axis {j + 1} (mm)")
     fig.tight_layout()
     return _png(fig)
 
@@ -289,6 +294,15 @@ def _hinge_section(res: Any) -> str:
     return "\n".join(out)
 
 
+def _materials_text(res: Any) -> str:
+    parts = getattr(res, "parts", None)
+    if parts is not None:
+        mats = sorted({str(p.material) for p in parts.parts if getattr(p, "material", "")})
+        if mats:
+            return ", ".join(mats) + ("" if res.design.panels.material else " (default of the solids)")
+    return res.design.panels.material or "unspecified"
+
+
 def _key_figures(res: Any, m: dict[str, Any]) -> str:
     d = res.design
 
@@ -305,7 +319,7 @@ def _key_figures(res: Any, m: dict[str, Any]) -> str:
     rows = [
         ["panels / creases", f"{m.get('panels', '-')} / {m.get('creases', '-')}"],
         ["panel thickness", f"{d.panels.thickness:g} mm" + (" (with overrides)" if d.panels.overrides else "")],
-        ["material", d.panels.material or "unspecified"],
+        ["material", _materials_text(res)],
         ["thickness method", fmt("method")],
         ["hinge style", d.hinge.style],
         ["rigid folding", fmt("rigid")],
@@ -384,7 +398,9 @@ def render_report(res: Any) -> str:
             x, y, z = m[key]
             env_rows.append([label, x, y, z])
     if env_rows:
-        parts.append(_table(["state", "x (mm)", "y (mm)", "z (mm)"], env_rows, num=(1, 2, 3)))
+        parts.append('<p class="note">Boxes along the principal axes of each state (largest extent '
+                     "first), so they do not depend on which panel stays still.</p>")
+        parts.append(_table(["state", "axis 1 (mm)", "axis 2 (mm)", "axis 3 (mm)"], env_rows, num=(1, 2, 3)))
         if m.get("packing_ratio"):
             parts.append(f"<p>Packing ratio (deployed panel area / stowed footprint): {m['packing_ratio']:.2f}.</p>")
     parts.append(_img(envelope_png(res), "stowed envelope"))
