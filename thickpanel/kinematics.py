@@ -303,11 +303,15 @@ def _default_target(model: LoopModel) -> float:
 def _tracker(model: LoopModel, driver: int | None, tol: Tolerances) -> _Tracker:
     from .verdicts import closed_form_path
 
-    closed = closed_form_path(model, tol=tol) if not model.cycles else None
-    if closed is not None and not closed.ok:
-        closed = None
-    direction = closed.direction() if closed is not None else _start_direction(model)
-    return _Tracker(model, tol, direction, driver, closed, np.zeros(model.n), 0.0)
+    cache = model.__dict__.setdefault("_trackers", {})
+    key = (id(tol), tol)
+    if key not in cache:  # closed form and start direction depend only on the model and tol
+        closed = closed_form_path(model, tol=tol) if not model.cycles else None
+        if closed is not None and not closed.ok:
+            closed = None
+        cache[key] = (closed, closed.direction() if closed is not None else _start_direction(model))
+    closed, direction = cache[key]
+    return _Tracker(model, tol, direction.copy(), driver, closed, np.zeros(model.n), 0.0)
 
 
 def fold_path(
