@@ -311,6 +311,11 @@ def _tracker(model: LoopModel, driver: int | None, tol: Tolerances) -> _Tracker:
             closed = None
         cache[key] = (closed, closed.direction() if closed is not None else _start_direction(model))
     closed, direction = cache[key]
+    if driver is not None and closed is not None and abs(closed.mult[driver]) <= tol.angle:
+        raise FoldError(
+            f"driver crease {cid(int(model.var_crease[driver]))} stays flat while the pattern folds (its fold-angle "
+            "multiplier is 0 on this branch): reachable range 0..0 rad; drive another crease"
+        )
     return _Tracker(model, tol, direction.copy(), driver, closed, np.zeros(model.n), 0.0)
 
 
