@@ -253,7 +253,8 @@ def load_design(path: str | Path, *, check_layout: bool = True) -> Design:
     path : str or Path
         TOML design file.
     check_layout : bool
-        Check the layout family and its parameter names against the layout registry.
+        Check against the registries: the layout family and its parameter names, the hinge style
+        and its options, the material keys. False checks the file on its own (types, ranges).
 
     Raises
     ------

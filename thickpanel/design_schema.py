@@ -111,7 +111,7 @@ SCHEMA: tuple[Key, ...] = (
     Key("exports", "formats", "list[str]", "", ["step", "stl", "bom"], "Export formats "
         "(`thickpanel.export.available_formats()`)."),
     Key("exports", "states", "list[float]", "-", [0.0, 1.0], "Fold fractions t to export the assembly at "
-        "(0 deployed, 1 stowed).", lo=0.0, hi=1.0),
+        "(0 deployed, 1 stowed); with more than one, each goes to its own sub-folder `t0.50/`.", lo=0.0, hi=1.0),
     Key("exports", "folder", "str", "", "", "Output folder, relative to the design file; empty: "
         "`exports/<name>` in the current directory. The command line's `-o` wins."),
     Key("exports", "report", "bool", "", True, "Write the HTML report with the exports."),
