@@ -266,3 +266,14 @@ def test_unwritable_output_folder_is_bad_input(starter, tmp_path):
     assert r.returncode == 2, (r.returncode, r.stderr)
     assert "Traceback" not in r.stderr and r.stderr.count("\n") == 1
     assert not any(p.suffix == ".tmp" for p in tmp_path.rglob("*"))  # no partial files left behind
+
+
+@pytest.mark.cad
+def test_check_refuses_a_pin_that_does_not_fit(tmp_path):
+    # A 4 mm pin in 3 mm aluminium panels: the barrel cannot fit inside the panel thickness
+    # (a barrel's outer diameter exceeds its pin's; common machining practice keeps a wall).
+    text = (ROOT / "examples" / "reflector-backing.toml").read_text().replace("pin_diameter_mm = 1.5",
+                                                                               "pin_diameter_mm = 4.0")
+    r = run("check", str(write(tmp_path, text)))
+    assert r.returncode == 2, (r.returncode, r.stderr)
+    assert "[hinge]" in r.stderr and "4 mm" in r.stderr and "Traceback" not in r.stderr

@@ -644,9 +644,11 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
 
 
 def run_check(design: Design, *, progress: Progress | None = None) -> dict[str, Any]:
-    """Validation, foldability, rigidity, fold path, method applicability and clearance; no files."""
+    """Validation, foldability, rigidity, fold path, method applicability, clearance and the hinge
+    and solid checks (parts are built in memory so a hinge that does not fit fails here); no files."""
     return run_pipeline(design, command="check", progress=progress,
-                        stages=("pattern", "foldability", "rigidity", "fold path", "method", "clearance")).summary()
+                        stages=("pattern", "foldability", "rigidity", "fold path", "method", "clearance",
+                                "solids")).summary()
 
 
 def run_fold(design: Design, t: float, out_dir: Path | None = None, *, progress: Progress | None = None,

@@ -3,7 +3,7 @@
 Commands::
 
     thickpanel new NAME [--scenario S] [--force]   write a commented starter design file NAME.toml
-    thickpanel check FILE                          validation, foldability, methods, clearance
+    thickpanel check FILE                          validation, foldability, methods, clearance, hinges
     thickpanel fold FILE --at T [-o DIR]           export one fold state (0 deployed .. 1 stowed)
     thickpanel build FILE [-o DIR]                 everything: checks, solids, exports, report
     thickpanel report FILE [-o DIR]                the HTML report only
