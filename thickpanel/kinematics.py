@@ -300,9 +300,11 @@ def _default_target(model: LoopModel) -> float:
     return DEFAULT_FULL_FOLD
 
 
-def _tracker(model: LoopModel, driver: int | None, tol: Tolerances) -> _Tracker:
+def _tracker(model: LoopModel, driver: int | None, tol: Tolerances, *, closed_form: bool = True) -> _Tracker:
     from .verdicts import closed_form_path
 
+    if not closed_form:
+        return _Tracker(model, tol, _start_direction(model), driver, None, np.zeros(model.n), 0.0)
     cache = model.__dict__.setdefault("_trackers", {})
     key = (id(tol), tol)
     if key not in cache:  # closed form and start direction depend only on the model and tol
@@ -385,10 +387,7 @@ def fold_path(
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (flat and target states)")
     n_states = int(n_states)
     require_closed_flat(model, tol)
-    tr = _tracker(model, k_drv, tol)
-    if not closed_form:
-        tr.closed = None
-        tr.direction = _start_direction(model)
+    tr = _tracker(model, k_drv, tol, closed_form=closed_form)
     levels = np.linspace(0.0, target, n_states)
     states = [model.state(tr.x, 0.0)]
     stop = "target"

@@ -41,6 +41,7 @@ if TYPE_CHECKING:
 
 __all__ = ["RigidVerdict", "rigid_foldability", "ClosedForm", "closed_form_path", "locked_where", "nullity"]
 
+_MULT_RTOL = 1e3  # x tol.closure: relative mismatch of two routes' multipliers that counts as "not 1"
 _DENSE_MAX = 300  # unknowns up to which the rank comes from a dense SVD (sparse eigensolver above)
 
 PROBE_FOLD: float = float(np.deg2rad(10.0))
@@ -208,7 +209,7 @@ def closed_form_path(model: LoopModel, *, tol: Tolerances = DEFAULT_TOL) -> Clos
                             seen.add(i2)
                             came[i2] = (i, k)
                             queue.append((i2, k))
-                elif not np.isclose(mult[k], want, rtol=tol.closure * 1e3, atol=tol.angle):
+                elif abs(mult[k] - want) > tol.angle + _MULT_RTOL * tol.closure * abs(want):
                     loop = _loop_between(came, i, by_var[k])
                     ratio = want / mult[k] if mult[k] != 0 else np.inf
                     verts = [vid(int(model.loop_vertex[q])) for q in loop]
