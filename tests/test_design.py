@@ -261,3 +261,9 @@ def test_unknown_method_option_suggests_nearest():
     with pytest.raises(DesignFileError, match=r"unknown key \[method\] options \(method 'membrane-gap'\) sid; "
                                               r"did you mean 'side'"):
         run_pipeline(d, stages=("pattern", "method"))
+
+
+def test_export_formats_checked():
+    pytest.importorskip("thickpanel.export")
+    with pytest.raises(DesignFileError, match=r"formats: 'stp' is not an export format; did you mean 'step'"):
+        loads_design(MINI + '[exports]\nformats = ["stp"]\n')

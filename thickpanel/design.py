@@ -551,6 +551,17 @@ class _Validator:
         t = self.section("exports")
         self.unknown(t, "exports")
         v = {k.name: self.value(k, t) for k in SCHEMA if k.section == "exports"}
+        if self.check_layout:
+            try:
+                from .export import available_formats
+            except ImportError:  # exporters not installed: the build reports it
+                available_formats = None  # type: ignore[assignment]
+            if available_formats is not None:
+                names = list(available_formats())
+                for f in v["formats"]:
+                    if f not in names:
+                        raise self.fail(f"[exports] formats: {f!r} is not an export format{suggest(f, names)} "
+                                        f"(available: {', '.join(names)})")
         folder = (self.base / v["folder"]).resolve() if v["folder"] else None
         return ExportSpec(tuple(v["formats"]), tuple(sorted(set(v["states"]))), folder, v["report"],
                           v["drawings"])
