@@ -74,6 +74,8 @@ every pattern becomes singular."""
 
 _MIN_STEP = 1e-3  # rad: smallest driver step before the path is declared locked
 _FIRST_STEP = float(np.deg2rad(2.0))  # rad: first trial step off flat
+_ROUND = 1e-15  # float round-off between two driver levels or fold fractions (not a geometric tolerance)
+_LOST = 1e-6  # relative size below which the projected start direction counts as lost
 _START_TRIES = 6  # start directions tried off flat by the general solver before it reports a lock
 _SIGN_SLACK = 1e3  # x tol.angle: a crease this far against its assignment is on another branch
 
@@ -106,7 +108,7 @@ class _Tracker:
 
     def advance(self, level: float, h: float) -> tuple[bool, float]:
         """Step from ``self.level`` to ``level`` with adaptive substeps; returns (reached, next h)."""
-        while self.level < level - 1e-15:
+        while self.level < level - _ROUND:
             step = min(h, level - self.level)
             got = self._step(self.level + step)
             if got is None:
@@ -221,7 +223,7 @@ def _start_direction(model: LoopModel, weights: FloatArray | None = None) -> Flo
         return s
     d = s - proj(s)
     big = np.abs(d) > 0.5 * np.abs(d).max()
-    if np.abs(d).max() <= 1e-6 * np.abs(s).max() or np.any(np.sign(d[big]) != np.sign(s[big])):
+    if np.abs(d).max() <= _LOST * np.abs(s).max() or np.any(np.sign(d[big]) != np.sign(s[big])):
         return s / np.abs(s).max()  # projection lost the assignment: keep the signs
     return d / np.abs(d).max()
 
@@ -461,7 +463,7 @@ def solve_state(pattern: CreasePattern, t: float, *, path: FoldPath | None = Non
     if not (0.0 <= t <= 1.0) or not np.isfinite(t):
         raise FoldError(f"fold fraction t = {t!r} is outside [0, 1] (this path covers {lo:g}..{hi:g})")
     target = float(path.meta.get("target", np.nan))
-    if t > hi + 1e-12 or not np.isfinite(target):
+    if t > hi + _ROUND * 1e3 or not np.isfinite(target):
         if t <= hi and not np.isfinite(target):
             return path.at(t)
         raise FoldError(
@@ -472,7 +474,7 @@ def solve_state(pattern: CreasePattern, t: float, *, path: FoldPath | None = Non
     k_drv = path.meta.get("driver_unknown")
     k = int(np.searchsorted(path.fractions, t, side="right")) - 1
     s0 = path.states[max(k, 0)]
-    if abs(s0.t - t) <= 1e-15:
+    if abs(s0.t - t) <= _ROUND:
         return s0
     tr = _tracker(model, k_drv, tol)
     if tr.closed is None and "direction" in path.meta:

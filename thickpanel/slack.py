@@ -43,6 +43,9 @@ __all__ = ["SlackReport", "joint_slack", "SLACK_CAUTION"]
 _SIGN_WEIGHT = 10.0  # weight (per mm of hinge length and rad) against folding a hinge the wrong way
 _NOMINAL_WEIGHT = 0.1  # weight (per mm of hinge length and rad) of the pull towards the nominal fold
 _MERIT = 100.0  # weight (x sheet size) of the overall-fold equation in the step acceptance test
+_LM_START, _LM_MIN = 1e-9, 1e-12  # relative Levenberg-Marquardt damping: start and floor
+_ACCEPT_RTOL = 1e-12  # a step may raise the merit by this relative round-off and still count
+_COST_RTOL = 1e-14  # relative merit decrease below which Gauss-Newton has converged
 _STALL = 1e-3  # x target: overall-fold shortfall at which the least-squares fold counts as stalled
 _MAX_SUBSTEP = float(np.deg2rad(5.0))  # rad: continuation step of the overall fold between solves
 
@@ -349,7 +352,7 @@ class _Problem:
 
     def _gauss_newton(self, poses: FloatArray, level: float, *, pull: bool) -> FloatArray:
         """Gauss-Newton with the overall-fold equation as an exact linear constraint (KKT system)."""
-        mu = 1e-9
+        mu = _LM_START
         big = (_MERIT * self.ext) ** 2
         r, J, c, g = self._system(poses, level, pull)
         cost = float(r @ r) + big * c * c
@@ -368,16 +371,16 @@ class _Problem:
                 trial = self.poses_from(poses, sol[:n])
                 r2, J2, c2, g2 = self._system(trial, level, pull)
                 cost2 = float(r2 @ r2) + big * c2 * c2
-                if cost2 <= cost * (1 + 1e-12):
+                if cost2 <= cost * (1 + _ACCEPT_RTOL):
                     break
                 mu *= 100
             else:
                 break
             step = float(np.abs(sol[:n]).max())
             poses, r, J, c, g = trial, r2, J2, c2, g2
-            done = cost - cost2 <= 1e-14 * max(cost, 1.0) and abs(c2) < self.tol.angle
+            done = cost - cost2 <= _COST_RTOL * max(cost, 1.0) and abs(c2) < self.tol.angle
             cost = cost2
-            mu = max(mu / 10, 1e-12)
+            mu = max(mu / 10, _LM_MIN)
             if done or (step < self.tol.length * 1e-3 and abs(c) < self.tol.angle):
                 break
         return poses

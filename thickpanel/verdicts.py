@@ -42,6 +42,9 @@ if TYPE_CHECKING:
 __all__ = ["RigidVerdict", "rigid_foldability", "ClosedForm", "closed_form_path", "locked_where", "nullity"]
 
 _MULT_RTOL = 1e3  # x tol.closure: relative mismatch of two routes' multipliers that counts as "not 1"
+_RANK_RTOL = 1e-7  # singular values below this fraction of the largest count as zero (off flat, the
+# smallest true singular values of the constraint Jacobian are of the order of the fold, >> 1e-7)
+_SHIFT = 1e-6  # relative negative shift of the shift-invert eigensolver (keeps J^T J - sigma I regular)
 _DENSE_MAX = 300  # unknowns up to which the rank comes from a dense SVD (sparse eigensolver above)
 
 PROBE_FOLD: float = float(np.deg2rad(10.0))
@@ -246,7 +249,7 @@ def _loop_between(came: dict[int, tuple[int, int]], i: int, others: list[int]) -
     return best
 
 
-def nullity(J: sp.csr_matrix, *, rel: float = 1e-7) -> int:
+def nullity(J: sp.csr_matrix, *, rel: float = _RANK_RTOL) -> int:
     """Dimension of the null space of ``J`` (singular values below ``rel`` times the largest)."""
     n = J.shape[1]
     if n == 0:
@@ -262,7 +265,7 @@ def nullity(J: sp.csr_matrix, *, rel: float = 1e-7) -> int:
     k = 8
     while True:
         k = min(k, n - 2)
-        ev = spla.eigsh(N, k=k, sigma=-1e-6 * top, which="LM", return_eigenvectors=False)
+        ev = spla.eigsh(N, k=k, sigma=-_SHIFT * top, which="LM", return_eigenvectors=False)
         small = int(np.count_nonzero(np.abs(ev) <= (rel**2) * top))
         if small < k or k >= n - 2:
             return small
