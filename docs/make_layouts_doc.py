@@ -53,6 +53,7 @@ VARIANTS: dict[str, list[tuple[str, dict[str, Any]]]] = {
 FRACTIONS = (0.25, 0.5, 0.75, 1.0)
 SLACK_TARGET = float(np.deg2rad(120.0))  # rad: overall fold for the slack of locked patterns
 N_STATES = 21
+MAX_ASSIGNMENTS = 4  # ranked assignments listed (and judged) per generated grid
 
 
 def _slug(name: str, label: str) -> str:
@@ -143,6 +144,30 @@ def _write(path: Path, data: bytes) -> None:
     os.replace(tmp, path)
 
 
+def _assignment_lines(cp: Any) -> str:
+    """Markdown list: the best ranked mountain/valley assignments of a generated grid and their verdicts."""
+    try:
+        from thickpanel.layouts.assignment import assignments, layout_info
+    except ImportError:
+        return ""
+    if layout_info(cp) is None:
+        return ""
+    try:
+        ranked = assignments(cp)[:MAX_ASSIGNMENTS]
+    except ThickpanelError:
+        return ""
+    out = []
+    for i, a in enumerate(ranked):
+        local = "passes Maekawa and big-little-big" if a.ok else "fails local flat-folding checks"
+        try:
+            v = rigid_foldability(a.apply(cp))
+            verdict = f"{v.kind} (dof {v.dof})"
+        except ThickpanelError as exc:
+            verdict = f"not judged: {exc}"[:120]
+        out.append(f"- rank {i}: {a.description}; {local}; rigid folding: {verdict}")
+    return "\n".join(out)
+
+
 def study(name: str, label: str, params: dict[str, Any], img_dir: Path) -> dict[str, str]:
     """One table row: verdict, reach, folded shape, slack and picture for one layout variant."""
     row = {"layout": name, "variant": label, "params": ", ".join(f"{k}={v}" for k, v in params.items()) or "defaults"}
@@ -151,6 +176,7 @@ def study(name: str, label: str, params: dict[str, Any], img_dir: Path) -> dict[
     except (ThickpanelError, TypeError, ValueError) as exc:
         row.update(verdict="not built", reach="", shape="", slack="", picture="", note=str(exc)[:160])
         return row
+    row["assignments"] = _assignment_lines(cp)
     if cp.seams:
         row["size"] = f"{cp.n_panels} panels, {int(cp.folding.sum())} folding creases, {len(cp.seams)} seams"
         v = rigid_foldability(cp)
@@ -230,6 +256,9 @@ def main(out: Path = ROOT / "docs" / "layouts.md") -> None:
     for r in rows:
         lines += [f"## {r['layout']}: {r['variant']}", "", f"Parameters: `{r['params']}`.", ""]
         lines += [f"Verdict: {r['verdict']}. {r.get('note', '')}", ""]
+        if r.get("assignments"):
+            lines += ["Ranked assignments of this grid (the layout's own choice is the one judged above):", ""]
+            lines += [r["assignments"], ""]
         if r.get("picture"):
             lines += [r["picture"], ""]
     _write(out, ("\n".join(lines) + "\n").encode())
