@@ -279,3 +279,16 @@ def test_check_refuses_a_pin_that_does_not_fit(tmp_path):
     r = run("check", str(write(tmp_path, text)))
     assert r.returncode == 2, (r.returncode, r.stderr)
     assert "[hinge]" in r.stderr and "4 mm" in r.stderr and "Traceback" not in r.stderr
+
+
+@pytest.mark.skipif(not has("thickpanel.kinematics"), reason="thickpanel.kinematics not written yet")
+def test_fold_path_progress_ticks_once_per_state(starter):
+    from thickpanel.build import run_pipeline
+    from thickpanel.design import load_design
+
+    ticks: list[tuple[str, int, int]] = []
+    res = run_pipeline(load_design(starter), stages=("pattern", "fold path"),
+                       progress=lambda label, i, n: ticks.append((label, i, n)))
+    inner = [t for t in ticks if t[0] == "fold path" and t[2] == 8]  # the starter samples 8 states
+    assert res.path is not None and len(res.path.states) == 8
+    assert len(inner) == 8 and inner[-1][1] == 7  # one tick per sampled state, bar not closed early

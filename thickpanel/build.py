@@ -361,6 +361,15 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         res.check("fold path", "n/a", why)
         return
     kw: dict[str, Any] = {"target": target, "n_states": d.fold.states}
+    if run.progress is not None:  # the solver calls stop_when on every sampled state: a progress tick
+        prog, total, seen = run.progress, d.fold.states, [0]
+
+        def tick(_state: Any) -> bool:
+            seen[0] += 1
+            prog("fold path", min(seen[0], total - 1), total)
+            return False
+
+        kw["stop_when"] = tick
     if d.fold.driver:
         n = cp.n_creases
         k = int(d.fold.driver[1:])
