@@ -1,13 +1,19 @@
-"""Benchmark: a 1,000-panel Miura plan with knuckle hinges, built and exported to STEP, against
-the floor: the same number of plain polygon prisms made with raw OCP and written to one STEP file.
+"""Benchmark: 1,000-panel plans with knuckle hinges, built and exported to STEP, against the
+floor: the same number of plain polygon prisms made with raw OCP and written to one STEP file.
 
-Run: ``.venv/bin/python bench/bench_solids.py [--nx 40 --ny 25 --reps 3]``. Prints a table of
-median times and the ratio (target: at most 3x). Not part of the test suite.
+Cases (one table): a Miura plan (translated copies), the same Miura with jittered inner vertices
+(no two panels congruent) and a log-spiral plan (``tapered`` method, bevel cuts on every panel;
+the panels of a ring are rotated copies). Routes: ``build_parts(share="rigid")`` (default),
+``share="translation"`` (prototype sharing by translation only).
+
+Run: ``.venv/bin/python bench/bench_solids.py [--reps 3 --cases miura,jittered,spiral]``. Prints
+median times and the ratio to the floor (target: at most 3x). Not part of the test suite.
 """
 
 from __future__ import annotations
 
 import argparse
+import math
 import statistics
 import sys
 import tempfile
@@ -26,11 +32,11 @@ from OCP.STEPControl import STEPControl_AsIs, STEPControl_Controller, STEPContro
 from OCP.TopoDS import TopoDS_Compound  # noqa: E402
 
 from tests.test_solids_plans import plain_plan  # noqa: E402
-from thickpanel import occ  # noqa: E402
 from thickpanel.export.step import _quiet, step_bytes  # noqa: E402
 from thickpanel.export.writer import write_atomic  # noqa: E402
 from thickpanel.layouts import make_layout  # noqa: E402
 from thickpanel.solids import build_parts  # noqa: E402
+from thickpanel.thickness import make_plan  # noqa: E402
 
 
 def floor(plan, path: Path) -> float:
@@ -57,71 +63,84 @@ def floor(plan, path: Path) -> float:
     return time.perf_counter() - t0
 
 
-def ours(plan, path: Path, validate: str = "full") -> tuple[float, float, float, float, int]:
-    """build_parts(knuckle) (validated) + named XCAF STEP of every part, written atomically."""
+def ours(plan, path: Path, share: str, options: dict) -> tuple[float, float, float, float, int,
+                                                                 int]:
+    """build_parts(knuckle) (validated) + named XCAF STEP of every part, written atomically.
+
+    Returns total s, build s, STEP s, MB, parts, distinct panel prototypes.
+    """
     t0 = time.perf_counter()
-    ps = build_parts(plan, hinge_style="knuckle", validate=validate)
+    ps = build_parts(plan, hinge_style="knuckle", hinge_options=options, share=share)
     t1 = time.perf_counter()
     data = step_bytes([(p.name, p.pieces, None) for p in ps.parts], name="bench")
     write_atomic(path, data)
     t2 = time.perf_counter()
-    return t2 - t0, t1 - t0, t2 - t1, len(data) / 1e6, len(ps.parts)
+    protos = len({p.attrs.get("prototype", p.name) for p in ps.parts if p.kind == "panel"})
+    if share == "translation":  # translation-shared panels carry one body key per class
+        protos = len({p.pieces[0][0] for p in ps.parts if p.kind == "panel"})
+    return t2 - t0, t1 - t0, t2 - t1, len(data) / 1e6, len(ps.parts), protos
 
 
-def check_cost(plan, sample: int = 100) -> tuple[float, float, int]:
-    """BRepCheck_Analyzer cost: ms per notched panel body (fresh, unshared copies of a sample),
-    the extrapolated seconds for every panel, and the number of distinct prototypes checked."""
-    ps = build_parts(plan, hinge_style="knuckle")
-    panels = [p for p in ps.parts if p.kind == "panel"]
-    bodies = [occ.prism(p.outline, 0.0, p.thickness) for p in panels[:sample]]
-    t0 = time.perf_counter()
-    ok = all(occ.check_shape(s) for s in bodies)
-    assert ok
-    per = (time.perf_counter() - t0) / len(bodies)
-    protos = {k for p in ps.parts for k, _, _ in p.pieces}
-    return per * 1e3, per * len(panels), len(protos)
+def cases(which: list[str], nx: int, ny: int, arms: int, rings: int) -> list[tuple]:
+    """(label, plan, knuckle options) per requested case."""
+    out = []
+    miura = make_layout("miura", a=40.0, b=35.0, gamma_deg=70.0, nx=nx, ny=ny)
+    if "miura" in which:
+        out.append(("Miura (translated copies)", plain_plan(miura, 4.0, 0.6, face="mid",
+                                                           clear=8.0), {}))
+    if "jittered" in which:
+        rng = np.random.default_rng(1)
+        v = miura.vertices.copy()
+        inner = miura.interior_vertices
+        v[inner] += rng.uniform(-1.0, 1.0, (len(inner), 2))
+        cp = type(miura)(v, miura.creases, miura.kinds, miura.target_angles, name="jittered")
+        out.append(("Miura jittered 1 mm (all differ)", plain_plan(cp, 4.0, 0.6, face="mid",
+                                                                  clear=8.0), {}))
+    if "spiral" in which:
+        cp = make_layout("log-spiral", arms=arms, rings=rings, outer_diameter=6000.0)
+        plan = make_plan(cp, "tapered", thickness=3.0, target_fold=math.radians(90))
+        # fixed knuckle length: filling the usable length leaves the hub corners too tight
+        out.append((f"log-spiral {arms} arms x {rings} rings, tapered (rotated copies)", plan,
+                    {"knuckle_length_mm": 6.0}))
+    return out
 
 
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--nx", type=int, default=40)
     ap.add_argument("--ny", type=int, default=25)
+    ap.add_argument("--arms", type=int, default=48)
+    ap.add_argument("--rings", type=int, default=20)
     ap.add_argument("--reps", type=int, default=3)
-    ap.add_argument("--jitter", type=float, default=0.0,
-                    help="move inner vertices by up to this many mm so no two panels are congruent")
+    ap.add_argument("--cases", default="miura,jittered,spiral")
+    ap.add_argument("--routes", default="rigid,translation")
     args = ap.parse_args()
-    cp = make_layout("miura", a=40.0, b=35.0, gamma_deg=70.0, nx=args.nx, ny=args.ny)
-    if args.jitter > 0:
-        rng = np.random.default_rng(1)
-        v = cp.vertices.copy()
-        inner = cp.interior_vertices
-        v[inner] += rng.uniform(-args.jitter, args.jitter, (len(inner), 2))
-        cp = type(cp)(v, cp.creases, cp.kinds, cp.target_angles, name="jittered miura")
-    plan = plain_plan(cp, 4.0, 0.6, face="mid", clear=8.0)
-    n = len(plan.slabs)
-    fl: list[float] = []
-    runs: dict[str, list[tuple[float, float, float, float, int]]] = {"full": [], "profile": []}
+    routes = args.routes.split(",")
+    rows = []
     with tempfile.TemporaryDirectory() as d:
-        for _ in range(args.reps):  # interleaved A B C A B C
-            fl.append(floor(plan, Path(d) / "floor.step"))
-            for mode in runs:
-                runs[mode].append(ours(plan, Path(d) / "ours.step", mode))
-        fmb = (Path(d) / "floor.step").stat().st_size / 1e6
-    chk_ms, chk_all, n_protos = check_cost(plan)
+        for label, plan, opts in cases(args.cases.split(","), args.nx, args.ny, args.arms,
+                                       args.rings):
+            fl: list[float] = []
+            runs: dict[str, list] = {r: [] for r in routes}
+            for _ in range(args.reps):  # interleaved A B C A B C
+                fl.append(floor(plan, Path(d) / "floor.step"))
+                for r in routes:
+                    runs[r].append(ours(plan, Path(d) / "ours.step", r, opts))
+            fmb = (Path(d) / "floor.step").stat().st_size / 1e6
+            rows.append((label, len(plan.slabs), fl, fmb, runs))
     med = statistics.median
-    nparts = runs["full"][0][4]
-    print(f"{cp.name}: panels {n}, hinge lines {len(plan.hinges)}, parts written {nparts}, "
-          f"median of {args.reps}")
-    print("| route | total s | build s | STEP s | MB | ratio to floor |")
-    print("| --- | --- | --- | --- | --- | --- |")
-    print(f"| floor: raw OCP prisms + one STEP | {med(fl):.2f} | | | {fmb:.1f} | 1.00 |")
-    for mode, rr in runs.items():
-        tot = med([r[0] for r in rr])
-        print(f"| build_parts(knuckle, validate={mode}) + named STEP | {tot:.2f} | "
-              f"{med([r[1] for r in rr]):.2f} | {med([r[2] for r in rr]):.2f} | {rr[0][3]:.1f} | "
-              f"{tot / med(fl):.2f} |")
-    print(f"BRepCheck of one fresh notched panel body: {chk_ms:.1f} ms (x {n} = {chk_all:.1f} s if "
-          f"every body were checked); distinct validated prototypes: {n_protos}")
+    print(f"median of {args.reps}; knuckle hinges; named XCAF STEP without pcurves")
+    print("| case | panels | route | panel prototypes | parts | total s | build s | STEP s | MB "
+          "| ratio to floor |")
+    print("| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |")
+    for label, n, fl, fmb, runs in rows:
+        print(f"| {label} | {n} | floor: raw OCP prisms + one STEP | | {n} | {med(fl):.2f} | | | "
+              f"{fmb:.1f} | 1.00 |")
+        for r, rr in runs.items():
+            tot = med([x[0] for x in rr])
+            print(f"| | | share={r} | {rr[0][5]} | {rr[0][4]} | {tot:.2f} | "
+                  f"{med([x[1] for x in rr]):.2f} | {med([x[2] for x in rr]):.2f} | "
+                  f"{rr[0][3]:.1f} | {tot / med(fl):.2f} |")
 
 
 if __name__ == "__main__":

@@ -4,19 +4,27 @@
   outline, so the prism needs no boolean;
 - :func:`self_intersects`: simple-polygon test (crossing, touching, collinear overlap);
 - :func:`simplify`: drop repeated, straight-through and zero-width spike points;
-- :func:`bevel_lines`: where cut planes meet the top and bottom faces.
+- :func:`bevel_lines`: where cut planes meet the top and bottom faces;
+- :func:`rigid_fits`: the proper planar motions (rotation about the sheet normal and translation,
+  never a reflection) that carry one outline onto another, vertex for vertex;
+- :func:`describe_panel` / :func:`rigid_match`: a panel's full feature description and the
+  rigid motion, if any, that carries a prototype's description onto it (prototype sharing).
 
 Lengths mm; outlines are (k, 2) arrays, counter-clockwise.
 """
 
 from __future__ import annotations
 
-from collections.abc import Sequence
-from typing import TYPE_CHECKING
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import astuple, dataclass
+from functools import partial
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from .errors import HingeError
+from .geometry2d import polygon_area
 from .pattern import cid
 from .tolerances import Tolerances
 from .typing import FloatArray
@@ -26,7 +34,10 @@ if TYPE_CHECKING:
 
     from .thickness.plan import Slab
 
-__all__ = ["notched", "self_intersects", "simplify", "bevel_lines"]
+__all__ = [
+    "notched", "self_intersects", "simplify", "bevel_lines", "rigid_fits", "PanelDescription",
+    "describe_panel", "rigid_match",
+]
 
 
 def notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatures, HingeDesign]],
@@ -179,3 +190,188 @@ def bevel_lines(slab: Slab, poly: FloatArray) -> list[tuple[str, FloatArray]]:
                 hs = sorted(hits, key=lambda p: float(p @ d))
                 out.append((layer, np.array([hs[0], hs[-1]])))
     return out
+
+
+def rigid_fits(src: FloatArray, dst: FloatArray,
+               eps: float) -> list[tuple[int, FloatArray, FloatArray]]:
+    """Proper rigid motions of the plane that carry outline ``src`` onto outline ``dst``.
+
+    For every cyclic start ``i`` the rotation is the least-squares (Kabsch) fit of the centred
+    vertex sets ``src[(j + i) % k] -> dst[j]``; a 2D rotation has determinant +1, so a mirror
+    image never fits (a reflected panel is a different part). A start is kept when every vertex
+    lands within ``eps`` of its partner.
+
+    Parameters
+    ----------
+    src, dst : (k, 2) float, mm
+        Outlines in the same orientation (counter-clockwise); different vertex counts never fit.
+    eps : float, mm
+
+    Returns
+    -------
+    list of (i, R, t)
+        In increasing ``i``; ``R`` (2, 2) and ``t`` (2,) mm with ``dst[j] = R src[(j + i) % k] + t``.
+    """
+    a = np.asarray(dst, dtype=float)
+    b0 = np.asarray(src, dtype=float)
+    k = len(a)
+    if len(b0) != k or k < 3:
+        return []
+    ca, cb = a.mean(axis=0), b0.mean(axis=0)
+    a_c = a - ca
+    idx = (np.arange(k)[:, None] + np.arange(k)[None, :]) % k
+    b = b0[idx] - cb  # (shift, vertex, 2)
+    cross = (b[..., 0] * a_c[None, :, 1] - b[..., 1] * a_c[None, :, 0]).sum(axis=1)
+    dot = (b * a_c[None]).sum(axis=(1, 2))
+    th = np.arctan2(cross, dot)
+    c, s = np.cos(th)[:, None], np.sin(th)[:, None]
+    rx = c * b[..., 0] - s * b[..., 1]
+    ry = s * b[..., 0] + c * b[..., 1]
+    res = np.hypot(rx - a_c[None, :, 0], ry - a_c[None, :, 1]).max(axis=1)
+    out = []
+    for i in np.flatnonzero(res <= eps):
+        r = np.array([[math.cos(th[i]), -math.sin(th[i])], [math.sin(th[i]), math.cos(th[i])]])
+        out.append((int(i), r, ca - r @ cb))
+    return out
+
+
+@dataclass
+class PanelDescription:
+    """A panel's full feature description in its flat sheet frame, for congruence tests.
+
+    ``planes`` (c, 4): cut normals and offsets; ``frames`` (g, 4, 3): hinge frame origin and
+    s, u, w axes of each hinge group; ``feats`` (g,): side, feature counts and pin diameter of
+    each group (exact), ``values`` (g,): the hinge-frame numbers of its features (mm);
+    ``standoffs``: (group index, (k, 2) footprint, z0, z1).
+    """
+
+    poly: FloatArray
+    z: tuple[float, float]
+    material: str
+    planes: FloatArray
+    frames: FloatArray
+    feats: list[tuple]
+    values: list[FloatArray]
+    standoffs: list[tuple[int, FloatArray, float, float]]
+    bucket: tuple
+
+
+_FEATURES = ("notches", "barrels", "rods", "boxes", "recesses", "holes")
+
+
+def _feature_numbers(feats: SideFeatures) -> tuple[tuple, FloatArray]:
+    """(exact signature, numbers) of one side's features in hinge coordinates."""
+    sig: list[Any] = []
+    vals: list[float] = []
+    for name in _FEATURES:
+        items = getattr(feats, name)
+        sig.append(len(items))
+        for it in items:
+            for x in astuple(it):
+                sig.append(x is None)
+                vals.append(0.0 if x is None else float(x))
+    return tuple(sig), np.asarray(vals)
+
+
+def describe_panel(slab: Slab, poly: FloatArray, groups: list, material: str) -> PanelDescription:
+    planes = np.array([[*c.normal, c.offset] for c in slab.cuts], dtype=float).reshape(-1, 4)
+    frames = np.array([[fr.origin, fr.s, fr.u, fr.w] for fr, *_ in groups],
+                      dtype=float).reshape(-1, 4, 3)
+    feats, values = [], []
+    for _fr, side, sf, des in groups:
+        sig, vals = _feature_numbers(sf)
+        feats.append((side, sig, des.info.get("pin_diameter")))
+        values.append(vals)
+    creases = [g[3].crease for g in groups]
+    standoffs = [(creases.index(st.crease) if st.crease in creases else -1,
+                  np.asarray(st.polygon, dtype=float), st.z0, st.z1) for st in slab.standoffs]
+    d = poly[np.r_[1:len(poly), 0]] - poly
+    perimeter = float(np.hypot(d[:, 0], d[:, 1]).sum())
+    # coarse bucket: only decides which earlier panels are compared, never whether they match
+    bucket = (len(poly), len(planes), len(groups), len(standoffs), material,
+              round(float(polygon_area(poly)), _BUCKET_DIGITS), round(perimeter, _BUCKET_DIGITS))
+    return PanelDescription(poly, (slab.z0, slab.z1), material, planes, frames, feats, values, standoffs,
+                 bucket)
+
+
+#: decimals of mm (mm^2) of the coarse buckets that pick candidate prototypes; a copy that falls
+#: into a neighbouring bucket is only built on its own, congruence is always tested with ``tol``
+_BUCKET_DIGITS = 3
+
+
+def _pair(n_a: int, n_b: int, ok: Callable[[int, int], bool]) -> list[int] | None:
+    """Greedy one-to-one pairing of items 0..n_a-1 with 0..n_b-1 under ``ok(i, j)``."""
+    if n_a != n_b:
+        return None
+    free = list(range(n_b))
+    out = []
+    for i in range(n_a):
+        j = next((j for j in free if ok(i, j)), None)
+        if j is None:
+            return None
+        free.remove(j)
+        out.append(j)
+    return out
+
+
+def _plane_ok(pl: FloatArray, q: FloatArray, tol: Tolerances, i: int, j: int) -> bool:
+    return bool(np.abs(pl[i, :3] - q[j, :3]).max() <= tol.angle
+                and abs(pl[i, 3] - q[j, 3]) <= tol.merge)
+
+
+def _group_ok(fr: FloatArray, p: PanelDescription, q: PanelDescription, tol: Tolerances, i: int,
+              j: int) -> bool:
+    return bool(p.feats[i] == q.feats[j]
+                and np.abs(fr[i, 0] - q.frames[j, 0]).max() <= tol.merge
+                and np.abs(fr[i, 1:] - q.frames[j, 1:]).max() <= tol.angle
+                and np.abs(p.values[i] - q.values[j]).max(initial=0.0) <= tol.merge)
+
+
+def _standoff_ok(st: list, q: list, gmap: list[int], tol: Tolerances, i: int, j: int) -> bool:
+    (g, fp, z0, z1), (gq, fq, zq0, zq1) = st[i], q[j]
+    same_group = (g < 0 and gq < 0) or (g >= 0 and gmap[g] == gq)
+    return bool(same_group and fp.shape == fq.shape and np.abs(fp - fq).max() <= tol.merge
+                and abs(z0 - zq0) <= tol.merge and abs(z1 - zq1) <= tol.merge)
+
+
+def rigid_match(p: PanelDescription, q: PanelDescription, tol: Tolerances) -> FloatArray | None:
+    """The proper rigid motion carrying prototype ``q`` onto panel ``p``, or None.
+
+    Tries the planar motions of :func:`rigid_fits` (outline vertices within ``tol.merge`` mm) in
+    order and keeps the first under which every feature of ``p``, carried into ``q``'s frame,
+    equals one of ``q``'s: z-range and material, cut planes (normals within ``tol.angle``,
+    offsets within ``tol.merge``), hinge groups (frame origin and axes, side, feature counts and
+    hinge-frame numbers, pin size) and standoffs (footprint, z-range, hinge group).
+
+    Returns
+    -------
+    (4, 4) float or None
+        ``x_p = M x_q`` between the two flat sheet frames (mm): a rotation about z and a
+        translation in the sheet plane.
+    """
+    if p.bucket != q.bucket or p.material != q.material:
+        return None
+    if abs(p.z[0] - q.z[0]) > tol.merge or abs(p.z[1] - q.z[1]) > tol.merge:
+        return None
+    for _i, r, t in rigid_fits(p.poly, q.poly, tol.merge):
+        r3 = np.eye(3)
+        r3[:2, :2] = r
+        t3 = np.array([t[0], t[1], 0.0])
+        n = p.planes[:, :3] @ r3.T  # p's features carried into q's frame
+        pl = np.column_stack([n, p.planes[:, 3] + n @ t3])
+        if _pair(len(pl), len(q.planes), partial(_plane_ok, pl, q.planes, tol)) is None:
+            continue
+        fr = p.frames @ r3.T
+        fr[:, 0] += t3
+        gmap = _pair(len(fr), len(q.frames), partial(_group_ok, fr, p, q, tol))
+        if gmap is None:
+            continue
+        st = [(g, fp @ r.T + t, z0, z1) for g, fp, z0, z1 in p.standoffs]
+        if _pair(len(st), len(q.standoffs),
+                 partial(_standoff_ok, st, q.standoffs, gmap, tol)) is None:
+            continue
+        m = np.eye(4)  # x_p = R^T (x_q - t)
+        m[:2, :2] = r.T
+        m[:2, 3] = -r.T @ t
+        return m
+    return None

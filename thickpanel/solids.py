@@ -1,10 +1,13 @@
 """Hinge-ready panel solids from a :class:`~thickpanel.thickness.plan.ThickPlan`.
 
 Each slab becomes a prism of its polygon (with the notches its hinge style asks for inserted into
-the outline, so they cost no boolean), trimmed by its cut planes, recesses and holes in *one*
+the outline, so they cost no boolean), trimmed by its cut planes (one cut each: their large
+half-space slabs overlap, which makes a multi-tool cut slow) and its recesses and holes in *one*
 multi-tool cut, plus its standoffs and hinge barrels as separate solids that only touch the panel
 (the part is a compound of touching solids, so its volume is the sum of theirs). Barrels and pins
-of equal size share one ``TShape`` placed by locations. Every solid is checked with
+of equal size share one ``TShape`` placed by locations, and so do panels whose whole feature
+description is a rotated and translated copy of an earlier panel's (``build_parts(share=...)``;
+the rotationally symmetric rings of spiral layouts). Every solid is checked with
 ``BRepCheck_Analyzer`` before it leaves this module (shared barrels once per size); an invalid one
 raises :class:`~thickpanel.errors.GeometryError` naming the part.
 
@@ -31,6 +34,7 @@ from . import occ
 from .errors import GeometryError
 from .geometry2d import polygon_area
 from .outline import bevel_lines as _bevel_lines
+from .outline import describe_panel, rigid_match
 from .outline import notched as _notched
 from .pattern import cid, pid
 from .tolerances import DEFAULT_TOL, Tolerances
@@ -39,6 +43,7 @@ from .typing import FloatArray
 if TYPE_CHECKING:
     from OCP.TopoDS import TopoDS_Shape
 
+    from .outline import PanelDescription
     from .poses import FoldState
     from .thickness.plan import Slab, ThickPlan
 
@@ -145,12 +150,16 @@ class PartSet:
 
 
 class _Cache:
-    """Shared barrel/rod solids per size, validated once each."""
+    """Shared barrel/rod solids per size, validated once each (``share=False``: every request
+    makes and checks its own solid under a key of its own)."""
 
-    def __init__(self) -> None:
+    def __init__(self, share: bool = True) -> None:
         self.shapes: dict[tuple, tuple[TopoDS_Shape, float]] = {}
+        self.share = share
 
     def get(self, key: tuple, make: Any, who: str) -> tuple[TopoDS_Shape, float]:
+        if not self.share:
+            key = key + ("#", len(self.shapes))
         hit = self.shapes.get(key)
         if hit is None:
             shape = make()
@@ -159,6 +168,10 @@ class _Cache:
             hit = (shape, occ.volume(shape))
             self.shapes[key] = hit
         return hit
+
+    def key(self, key: tuple) -> tuple:
+        """The key a piece made by the last :meth:`get` of ``key`` carries."""
+        return key if self.share else key + ("#", len(self.shapes) - 1)
 
 
 def _key(*xs: float) -> tuple:
@@ -208,6 +221,7 @@ def build_parts(
     state: FoldState | None = None,
     material: str | None = None,
     validate: str = "full",
+    share: str = "rigid",
     tol: Tolerances = DEFAULT_TOL,
 ) -> PartSet:
     """Build every panel, pin, tape and flexure part of a thick plan.
@@ -230,6 +244,16 @@ def build_parts(
         (untrimmed) panel prisms are checked through their outline face (``BRepCheck``) and the
         sweep's volume identity, about 8x cheaper on notched outlines; all other solids stay on
         the full check.
+    share : str
+        How parts share validated prototype solids (each prototype is checked once and placed by
+        locations; exporters write it once). ``rigid`` (default): a panel whose whole feature
+        description (notched outline, z-range, material, cut planes, hinge features with their
+        holes and recesses, standoffs) is a rotated and translated copy of an earlier panel's,
+        within ``tol.merge`` mm (``tol.angle`` for plane normals), is that panel's prototype
+        placed by the planar motion; reflections are never used (a mirror image of a panel with
+        one-sided hinge features is another part). Other panels share untrimmed bodies by
+        translation, and barrels and pins of equal size. ``translation``: only the latter.
+        ``none``: every solid is made and checked on its own (reference for tests).
     tol : Tolerances
 
     Returns
@@ -239,6 +263,8 @@ def build_parts(
     """
     if validate not in ("full", "profile"):
         raise GeometryError(f"validate = {validate!r}; allowed: 'full', 'profile'")
+    if share not in ("rigid", "translation", "none"):
+        raise GeometryError(f"share = {share!r}; allowed: 'rigid', 'translation', 'none'")
     style = (get_hinge_style(hinge_style, **dict(hinge_options or {}))
              if isinstance(hinge_style, str) else hinge_style)
     slabs = {s.panel: s for s in plan.slabs}
@@ -264,13 +290,9 @@ def build_parts(
         frames[h.crease] = fr = HingeFrame.of(h)
         per_panel.setdefault(a, []).append((fr, 0, des.sides[0], des))
         per_panel.setdefault(b, []).append((fr, 1, des.sides[1], des))
-    cache = _Cache()
+    cache = _Cache(share != "none")
     poses = None if state is None else plan.poses(state)
-    parts: list[Part] = []
-    for slab in plan.slabs:
-        p = slab.panel
-        groups = per_panel.get(p, [])
-        parts.append(_panel_part(slab, groups, mats[p], cache, poses, tol, validate))
+    parts = _panels(plan, per_panel, mats, cache, poses, tol, validate, share == "rigid")
     for des, h in zip(designs, plan.hinges, strict=True):
         fr = frames[h.crease]
         for ex in des.extras:
@@ -312,16 +334,82 @@ def _profile_checked_prism(rel: FloatArray, slab: Slab, who: str,
     return solid, vol
 
 
-def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
-                poses: FloatArray | None, tol: Tolerances, validate: str = "full") -> Part:
-    who = pid(slab.panel)
+def _outline(slab: Slab, groups: list, tol: Tolerances) -> FloatArray:
+    """(k, 2) float, mm: the slab outline, counter-clockwise, with its hinge notches."""
     poly = slab.polygon_array()
     if polygon_area(poly) < 0:
         poly = poly[::-1].copy()
-    poly = _notched(poly, groups, who, tol)
+    return _notched(poly, groups, pid(slab.panel), tol)
+
+
+def _panels(plan: ThickPlan, per_panel: dict, mats: dict[int, str], cache: _Cache,
+            poses: FloatArray | None, tol: Tolerances, validate: str, rigid: bool) -> list[Part]:
+    """Every panel part, in slab order; with ``rigid`` congruent panels are placed prototypes.
+
+    The prototype of a class is its first panel in slab order and a copy takes the first
+    matching cyclic start of its outline, so the result is deterministic.
+    """
+    parts: list[Part | None] = []
+    descs: dict[int, PanelDescription] = {}
+    buckets: dict[tuple, list[int]] = {}
+    copies: list[tuple[int, int, FloatArray, FloatArray]] = []
+    for k, slab in enumerate(plan.slabs):
+        groups = per_panel.get(slab.panel, [])
+        poly = _outline(slab, groups, tol)
+        if rigid:
+            d = describe_panel(slab, poly, groups, mats[slab.panel])
+            hit = None
+            for q in buckets.get(d.bucket, []):
+                m = rigid_match(d, descs[q], tol)
+                if m is not None:
+                    hit = (q, m)
+                    break
+            if hit is not None:
+                copies.append((k, hit[0], hit[1], poly))
+                parts.append(None)
+                continue
+            descs[k] = d
+            buckets.setdefault(d.bucket, []).append(k)
+        parts.append(_panel_part(slab, poly, groups, mats[slab.panel], cache, poses, tol,
+                                 validate))
+    renamed: set[int] = set()
+    for k, q, m, poly in copies:
+        proto = parts[q]
+        assert proto is not None
+        if q not in renamed:  # the prototype's own solids become shared prototypes
+            proto.pieces[:] = [(("rigid", proto.name, j) if key[0] == "unique" else key, shp, mm)
+                               for j, (key, shp, mm) in enumerate(proto.pieces)]
+            renamed.add(q)
+        parts[k] = _copy_part(proto, plan.slabs[k], poly, m, poses)
+    return [p for p in parts if p is not None]
+
+
+def _copy_part(proto: Part, slab: Slab, poly: FloatArray, m: FloatArray,
+               poses: FloatArray | None) -> Part:
+    """Panel ``slab`` as prototype ``proto`` placed by the rigid motion ``m`` (flat frames)."""
+    pieces = [(key, shp, m @ mm) for key, shp, mm in proto.pieces]
+    frame_shape = _place(pieces)
+    shape = frame_shape if poses is None else occ.moved(frame_shape, poses[slab.panel])
+    holes = []
+    for x, y, dia in proto.holes:
+        xy = m[:2, :2] @ (x, y) + m[:2, 3]
+        holes.append((float(xy[0]), float(xy[1]), dia))
+    attrs = dict(proto.attrs)
+    attrs["prototype"] = proto.name
+    return Part(
+        pid(slab.panel), "panel", shape, frame_shape, proto.material, proto.volume, slab.panel,
+        slab.thickness, float(polygon_area(poly)), poly, holes, _bevel_lines(slab, poly),
+        proto.hinge_count, proto.pins, attrs, pieces,
+    )
+
+
+def _panel_part(slab: Slab, poly: FloatArray, groups: list, material: str, cache: _Cache,
+                poses: FloatArray | None, tol: Tolerances, validate: str = "full") -> Part:
+    who = pid(slab.panel)
     centre = np.array([*poly.mean(axis=0), 0.5 * (slab.z0 + slab.z1)])
     size = 2.0 * (float(np.ptp(poly, axis=0).max()) + slab.thickness) + 1.0
-    tools = [occ.half_space_box(c.normal, c.offset, centre, size) for c in slab.cuts]
+    planes = [occ.half_space_box(c.normal, c.offset, centre, size) for c in slab.cuts]
+    tools: list[TopoDS_Shape] = []
     holes: list[tuple[float, float, float]] = []
     for fr, _side, feats, _ in groups:
         tools.extend(_box_solid(fr, r) for r in feats.recesses)
@@ -333,10 +421,15 @@ def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
                                    0.5 * d, slab.thickness + 2.0), who)
             tools.append(occ.moved(cyl, _translation((xy[0], xy[1], slab.z0 - 1.0))))
     pieces: list[Piece] = []
-    if tools:
+    if planes or tools or not cache.share:
         body = occ.prism(poly, slab.z0, slab.z1)
         try:
-            body = occ.cut_many(body, tools)
+            # one cut per plane: the large half-space slabs overlap each other, and a multi-tool
+            # cut intersects its tools pairwise (2x slower at 3-4 planes, and out of memory on a
+            # 24-gon hub with 24 bevels); small holes and recesses go in one multi-tool cut
+            for pl in planes:
+                body = occ.cut_many(body, [pl])
+            body = occ.cut_many(body, tools) if tools else body
         except RuntimeError:
             raise GeometryError(f"panel {who}: trimming by cuts/recesses/holes failed") from None
         if not occ.check_shape(body):
@@ -365,7 +458,7 @@ def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
                 f"panel {who}: the panel solid is invalid (BRepCheck); outline has {len(poly)} "
                 f"corners"
             ) from None
-        pieces.append((key, proto, _translation((lo[0], lo[1], 0.0))))
+        pieces.append((cache.key(key), proto, _translation((lo[0], lo[1], 0.0))))
     if vol <= 0:
         raise GeometryError(f"panel {who}: the panel solid has no volume ({vol:g} mm^3)")
     for st in slab.standoffs:
@@ -407,13 +500,13 @@ def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
             key = ("barrel",) + _key(br.radius, br.hole, br.clip or -1, br.s1 - br.s0)
             shp, v = cache.get(key, lambda br=br: occ.barrel_profile_prism(
                 br.radius, br.hole, -br.clip if br.clip is not None else None, br.s1 - br.s0), who)
-            pieces.append((key, shp, _barrel_matrix(fr, side, br.s0)))
+            pieces.append((cache.key(key), shp, _barrel_matrix(fr, side, br.s0)))
             vol += v
         for rd in feats.rods:
             key = ("rod",) + _key(rd.radius, rd.s1 - rd.s0)
             shp, v = cache.get(key, lambda rd=rd: occ.cylinder_along_z(rd.radius, rd.s1 - rd.s0),
                                who)
-            pieces.append((key, shp, _barrel_matrix(fr, side, rd.s0)))
+            pieces.append((cache.key(key), shp, _barrel_matrix(fr, side, rd.s0)))
             vol += v
         for bx in feats.boxes:
             b = _box_solid(fr, bx)
@@ -426,7 +519,8 @@ def _panel_part(slab: Slab, groups: list, material: str, cache: _Cache,
     return Part(
         who, "panel", shape, frame_shape, material, vol, slab.panel, slab.thickness,
         float(polygon_area(poly)), poly, holes, _bevel_lines(slab, poly), len(groups),
-        tuple(pins), {"cuts": len(slab.cuts), "standoffs": len(slab.standoffs)}, pieces,
+        tuple(pins), {"cuts": len(slab.cuts), "standoffs": len(slab.standoffs), "prototype": who},
+        pieces,
     )
 
 
@@ -438,7 +532,7 @@ def _extra_part(ex: ExtraPart, fr: HingeFrame, panel: int, cache: _Cache,
         key = ("rod",) + _key(rd.radius, rd.s1 - rd.s0)
         shp, v = cache.get(key, lambda rd=rd: occ.cylinder_along_z(rd.radius, rd.s1 - rd.s0),
                            ex.name)
-        pieces.append((key, shp, _barrel_matrix(fr, 0, rd.s0)))
+        pieces.append((cache.key(key), shp, _barrel_matrix(fr, 0, rd.s0)))
         vol += v
     outline = None
     thick = 0.0
