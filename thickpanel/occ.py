@@ -51,6 +51,7 @@ __all__ = [
     "prism_of_face",
     "cut_many",
     "half_space_box",
+    "half_space_patch",
     "barrel_profile_prism",
     "cylinder_along_z",
     "location",
@@ -138,6 +139,50 @@ def half_space_box(
     pln = gp_Pln(gp_Ax3(_pnt(origin), gp_Dir(*n)))
     face = BRepBuilderAPI_MakeFace(pln, mk.Wire(), True).Face()
     return BRepPrimAPI_MakePrism(face, gp_Vec(*(size * n)), False).Shape()
+
+
+def half_space_patch(
+    normal: Sequence[float], offset: float, points: FloatArray, margin: float
+) -> TopoDS_Shape | None:
+    """A box standing for the removed side ``normal . x > offset`` of a region, fitted to it.
+
+    Parameters
+    ----------
+    normal : (3,) float, unit
+    offset : float, mm
+    points : (n, 3) float, mm
+        Vertices of the part of the region beyond the plane (its box hull covers that part).
+    margin : float, mm
+        Clearance of the box's other faces from the region (> 0, so no face is coplanar).
+
+    Returns
+    -------
+    TopoDS_Shape or None
+        A box on the plane, ``margin`` wider than the points in both in-plane directions and
+        reaching ``margin`` past the farthest one; None when no point lies beyond the plane.
+    """
+    n = np.asarray(normal, dtype=float)
+    n = n / np.linalg.norm(n)
+    pts = np.asarray(points, dtype=float).reshape(-1, 3)
+    if len(pts) == 0:
+        return None
+    ref = np.array([1.0, 0.0, 0.0]) if abs(n[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
+    a = np.cross(n, ref)
+    a /= np.linalg.norm(a)
+    b = np.cross(n, a)
+    pa, pb, pn = pts @ a, pts @ b, pts @ n - offset
+    a0, a1 = pa.min() - margin, pa.max() + margin
+    b0, b1 = pb.min() - margin, pb.max() + margin
+    base = offset * n
+    corners = [base + sa * a + sb * b for sa, sb in ((a0, b0), (a1, b0), (a1, b1), (a0, b1))]
+    mk = BRepBuilderAPI_MakePolygon()
+    for p in corners:
+        mk.Add(_pnt(p))
+    mk.Close()
+    pln = gp_Pln(gp_Ax3(_pnt(base), gp_Dir(*n)))
+    face = BRepBuilderAPI_MakeFace(pln, mk.Wire(), True).Face()
+    depth = float(max(pn.max(), 0.0)) + margin
+    return BRepPrimAPI_MakePrism(face, gp_Vec(*(depth * n)), False).Shape()
 
 
 def cut_many(shape: TopoDS_Shape, tools: Sequence[TopoDS_Shape]) -> TopoDS_Shape:

@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Sequence
-from dataclasses import astuple, dataclass
+from dataclasses import dataclass
 from functools import partial
 from typing import TYPE_CHECKING, Any
 
@@ -267,7 +267,7 @@ def _feature_numbers(feats: SideFeatures) -> tuple[tuple, FloatArray]:
         items = getattr(feats, name)
         sig.append(len(items))
         for it in items:
-            for x in astuple(it):
+            for x in vars(it).values():  # the fields of a frozen dataclass, in order
                 sig.append(x is None)
                 vals.append(0.0 if x is None else float(x))
     return tuple(sig), np.asarray(vals)
