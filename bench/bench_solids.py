@@ -2,8 +2,8 @@
 floor: the same number of plain polygon prisms made with raw OCP and written to one STEP file.
 
 Cases (one table): a Miura plan (translated copies), the same Miura with jittered inner vertices
-(no two panels congruent) and a log-spiral plan (``tapered`` method, bevel cuts on every panel;
-the panels of a ring are rotated copies). Routes: ``build_parts(share="rigid")`` (default),
+(no two panels congruent) and a log-spiral plan, ``tapered`` (bevel cuts on every panel) and
+``plain`` (the panels of a ring are rotated copies). Routes: ``build_parts(share="rigid")`` (default),
 ``share="translation"`` (prototype sharing by translation only).
 
 Run: ``.venv/bin/python bench/bench_solids.py [--reps 3 --cases miura,jittered,spiral]``. Prints
@@ -96,12 +96,15 @@ def cases(which: list[str], nx: int, ny: int, arms: int, rings: int) -> list[tup
         cp = type(miura)(v, miura.creases, miura.kinds, miura.target_angles, name="jittered")
         out.append(("Miura jittered 1 mm (all differ)", plain_plan(cp, 4.0, 0.6, face="mid",
                                                                   clear=8.0), {}))
-    if "spiral" in which:
+    spirals = [c for c in ("spiral", "spiral-plain") if c in which]
+    if spirals:
         cp = make_layout("log-spiral", arms=arms, rings=rings, outer_diameter=6000.0)
-        plan = make_plan(cp, "tapered", thickness=3.0, target_fold=math.radians(90))
-        # fixed knuckle length: filling the usable length leaves the hub corners too tight
-        out.append((f"log-spiral {arms} arms x {rings} rings, tapered (rotated copies)", plan,
-                    {"knuckle_length_mm": 6.0}))
+        for c in spirals:
+            method = "tapered" if c == "spiral" else "plain"
+            plan = make_plan(cp, method, thickness=3.0, target_fold=math.radians(90))
+            # fixed knuckle length: filling the usable length leaves the hub corners too tight
+            out.append((f"log-spiral {arms} arms x {rings} rings, {method} (rotated copies)",
+                        plan, {"knuckle_length_mm": 6.0}))
     return out
 
 
@@ -112,7 +115,7 @@ def main() -> None:
     ap.add_argument("--arms", type=int, default=48)
     ap.add_argument("--rings", type=int, default=20)
     ap.add_argument("--reps", type=int, default=3)
-    ap.add_argument("--cases", default="miura,jittered,spiral")
+    ap.add_argument("--cases", default="miura,jittered,spiral,spiral-plain")
     ap.add_argument("--routes", default="rigid,translation")
     args = ap.parse_args()
     routes = args.routes.split(",")
