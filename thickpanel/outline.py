@@ -35,17 +35,18 @@ if TYPE_CHECKING:
     from .thickness.plan import Slab
 
 __all__ = [
-    "notched", "self_intersects", "simplify", "bevel_lines", "rigid_fits", "PanelDescription",
+    "notched", "check_notched", "self_intersects", "simplify", "bevel_lines", "rigid_fits", "PanelDescription",
     "describe_panel", "rigid_match",
 ]
 
 
 def notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatures, HingeDesign]],
-             who: str, tol: Tolerances, *, clip: bool = False) -> FloatArray:
+             who: str, tol: Tolerances, *, clip: bool = False, check: bool = True) -> FloatArray:
     """Insert every hinge notch into the slab outline (no boolean needed).
 
     With ``clip`` (standoff blocks, shorter than the hinge) notches are clipped to the edge
-    instead of refused.
+    instead of refused. ``check=False`` leaves out the simple-polygon test (the caller runs
+    :func:`check_notched`, e.g. only on prototypes: a rigid copy of a simple polygon is simple).
     """
     inserts: dict[int, list[tuple[float, int, tuple[float, float]]]] = {}
     pts_l = [(float(x), float(y)) for x, y in poly]
@@ -95,13 +96,21 @@ def notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatur
         for _, _, pt in sorted(inserts.get(j, []), key=lambda x: (x[0], x[1])):
             out.append(pt)
     res = simplify(np.array(out), tol)
-    if self_intersects(res, tol.length):
+    if check:
+        check_notched(res, groups, who, tol)
+    return res
+
+
+def check_notched(poly: FloatArray, groups: Sequence[tuple[HingeFrame, int, SideFeatures,
+                                                           HingeDesign]],
+                  who: str, tol: Tolerances) -> None:
+    """HingeError naming the panel and creases when the notched outline is not simple."""
+    if self_intersects(poly, tol.length):
         creases = ", ".join(cid(g[3].crease) for g in groups if g[2].notches)
         raise HingeError(
             f"hinge notches of {creases} overlap on {who}: the usable hinge lengths leave too little "
             f"room at the panel's corners for the knuckles and their clearance notches"
         )
-    return res
 
 
 def self_intersects(poly: FloatArray, eps: float) -> bool:
@@ -219,7 +228,13 @@ def rigid_fits(src: FloatArray, dst: FloatArray,
         return []
     ca, cb = a.mean(axis=0), b0.mean(axis=0)
     a_c = a - ca
-    idx = (np.arange(k)[:, None] + np.arange(k)[None, :]) % k
+    # a rigid motion keeps each vertex's distance from the vertex centroid: only starts whose
+    # first two vertices agree in that distance can fit
+    ra, rb = np.hypot(*a_c.T), np.hypot(*(b0 - cb).T)
+    starts = np.flatnonzero((np.abs(rb - ra[0]) <= eps) & (np.abs(np.roll(rb, -1) - ra[1]) <= eps))
+    if len(starts) == 0:
+        return []
+    idx = (starts[:, None] + np.arange(k)[None, :]) % k
     b = b0[idx] - cb  # (shift, vertex, 2)
     cross = (b[..., 0] * a_c[None, :, 1] - b[..., 1] * a_c[None, :, 0]).sum(axis=1)
     dot = (b * a_c[None]).sum(axis=(1, 2))
@@ -229,9 +244,9 @@ def rigid_fits(src: FloatArray, dst: FloatArray,
     ry = s * b[..., 0] + c * b[..., 1]
     res = np.hypot(rx - a_c[None, :, 0], ry - a_c[None, :, 1]).max(axis=1)
     out = []
-    for i in np.flatnonzero(res <= eps):
-        r = np.array([[math.cos(th[i]), -math.sin(th[i])], [math.sin(th[i]), math.cos(th[i])]])
-        out.append((int(i), r, ca - r @ cb))
+    for n in np.flatnonzero(res <= eps):
+        r = np.array([[math.cos(th[n]), -math.sin(th[n])], [math.sin(th[n]), math.cos(th[n])]])
+        out.append((int(starts[n]), r, ca - r @ cb))
     return out
 
 

@@ -34,7 +34,7 @@ from . import occ
 from .errors import GeometryError
 from .geometry2d import polygon_area
 from .outline import bevel_lines as _bevel_lines
-from .outline import describe_panel, rigid_match
+from .outline import check_notched, describe_panel, rigid_match
 from .outline import notched as _notched
 from .pattern import cid, pid
 from .tolerances import DEFAULT_TOL, Tolerances
@@ -334,12 +334,15 @@ def _profile_checked_prism(rel: FloatArray, slab: Slab, who: str,
     return solid, vol
 
 
-def _outline(slab: Slab, groups: list, tol: Tolerances) -> FloatArray:
-    """(k, 2) float, mm: the slab outline, counter-clockwise, with its hinge notches."""
+def _outline(slab: Slab, groups: list, tol: Tolerances,
+             check: bool = True) -> tuple[FloatArray, bool]:
+    """(k, 2) float, mm: the slab outline, counter-clockwise, with its hinge notches; and
+    whether any notch was inserted (``check=False`` then leaves its simple-polygon test out)."""
     poly = slab.polygon_array()
     if polygon_area(poly) < 0:
         poly = poly[::-1].copy()
-    return _notched(poly, groups, pid(slab.panel), tol)
+    out = _notched(poly, groups, pid(slab.panel), tol, check=check)
+    return out, out is not poly
 
 
 def _panels(plan: ThickPlan, per_panel: dict, mats: dict[int, str], cache: _Cache,
@@ -355,7 +358,7 @@ def _panels(plan: ThickPlan, per_panel: dict, mats: dict[int, str], cache: _Cach
     copies: list[tuple[int, int, FloatArray, FloatArray]] = []
     for k, slab in enumerate(plan.slabs):
         groups = per_panel.get(slab.panel, [])
-        poly = _outline(slab, groups, tol)
+        poly, cut_in = _outline(slab, groups, tol, check=not rigid)
         if rigid:
             d = describe_panel(slab, poly, groups, mats[slab.panel])
             hit = None
@@ -368,6 +371,8 @@ def _panels(plan: ThickPlan, per_panel: dict, mats: dict[int, str], cache: _Cach
                 copies.append((k, hit[0], hit[1], poly))
                 parts.append(None)
                 continue
+            if cut_in:  # prototypes only: a rigid copy of a simple outline is simple
+                check_notched(poly, groups, pid(slab.panel), tol)
             descs[k] = d
             buckets.setdefault(d.bucket, []).append(k)
         parts.append(_panel_part(slab, poly, groups, mats[slab.panel], cache, poses, tol,
