@@ -193,6 +193,8 @@ def family_section(name: str, case: dict[str, Any], index: int = 0) -> list[str]
                 plan = make_plan(cp, adv.method, thickness=t, target_fold=target, path=path)
                 rep = clearance(plan, path)
                 row_min = "inf" if math.isinf(rep.min_clearance) else f"{rep.min_clearance:.3f}"
+                if rep.lower_bound:
+                    row_min = f">= {rep.min_clearance:.3f}"
                 if rep.where is not None:
                     (a, b), tt = rep.where
                     row_where = f"{a}-{b} at t={tt:.3f}"

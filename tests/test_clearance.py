@@ -180,3 +180,32 @@ def test_contact_stop_ends_a_fold_path_at_first_contact():
     assert path.stop_reason == "contact"
     last = float(np.max(np.abs(path.states[-1].angles)))
     assert math.radians(100) <= last <= math.radians(100) + math.radians(150) / 30 + 1e-9
+
+
+def test_minimum_is_a_lower_bound_when_no_pair_comes_within_the_margin():
+    # Regression: a state whose only measured pairs are farther than the search margin proves only
+    # "at least margin" (pairs outside the margin are never measured), so the report must not quote
+    # a larger measured distance from another state as the minimum. Pure geometry, no outside value.
+    from thickpanel.layouts import make_layout
+
+    cp = make_layout("miura", a=30.0, b=30.0, gamma_deg=70.0, nx=4, ny=3)
+    target = math.radians(120.0)
+    from thickpanel.kinematics import fold_path
+
+    path = fold_path(cp, target=target, n_states=12)
+    plan = make_plan(cp, "tapered", thickness=2.0, target_fold=target, path=path)
+    rep = clearance(plan, path)
+    # the closest non-neighbour slabs of this sheet stay more than one thickness apart
+    assert rep.lower_bound
+    if rep.lower_bound:
+        assert rep.min_clearance == pytest.approx(rep.margin)
+        assert rep.where is None
+        assert all(v < rep.margin for _, v, _ in rep.worst_pairs)
+        assert "at least" in rep.summary()
+    else:
+        assert rep.min_clearance < rep.margin
+    # a wide margin measures every pair: the minimum is then a real distance with its pair
+    wide = clearance(plan, path, margin=200.0)
+    assert not wide.lower_bound and wide.where is not None
+    # the bound holds: the real minimum is not below the bounded one
+    assert wide.min_clearance >= rep.min_clearance - 1e-9

@@ -493,7 +493,10 @@ def _clearance(run: _Run) -> None:
         res.check("clearance", "n/a", why)
         return
     with run.stage("clearance") as rec:
-        rep = fn(res.plan, res.path)
+        # measure pairs out to a few slab thicknesses so the report quotes real distances, not only
+        # the bound "at least the margin" (the sweep's own default margin is one thickness)
+        margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
+        rep = fn(res.plan, res.path, margin=margin)
         first = getattr(rep, "first_contact", None)
         if d.fold.stop_at_contact and first:
             rep = _stop_at_contact(res, fn, rep, float(first[0]))
@@ -501,7 +504,11 @@ def _clearance(run: _Run) -> None:
         mc = float(rep.min_clearance)
         res.metrics["min_clearance_mm"] = mc
         where = getattr(rep, "where", None)
-        rec["note"] = f"minimum {mc:.3f} mm" + (f" {_where_text(where)}" if where else "")
+        if getattr(rep, "lower_bound", False):
+            res.metrics["min_clearance_lower_bound"] = True
+            rec["note"] = f"minimum at least {mc:.3f} mm (no two slabs came within the search margin)"
+        else:
+            rec["note"] = f"minimum {mc:.3f} mm" + (f" {_where_text(where)}" if where else "")
         first = getattr(rep, "first_contact", None)
         if first:
             res.metrics["first_contact"] = {"t": float(first[0]), "pair": list(first[1])}
@@ -524,7 +531,7 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
               f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
-    return sweep(res.plan, res.path)
+    return sweep(res.plan, res.path, margin=rep.margin)
 
 
 def _where_text(where: Any) -> str:

@@ -90,10 +90,12 @@ class ClearanceReport:
     ----------
     method : str
     min_clearance : float, mm
-        Smallest signed clearance over the path (negative = penetration depth); ``inf`` when no
-        pair came within ``margin``.
+        Smallest signed clearance over the path (negative = penetration depth). Pairs are measured
+        only within ``margin``: when the closest approach of some state is not within it, the
+        value is ``margin`` and ``lower_bound`` is True (the true minimum is at least that);
+        ``inf`` only for a path whose states have no pair of slabs at all.
     where : ((str, str), float) or None
-        Closest pair ids and the fold fraction where it occurs.
+        Closest pair ids and the fold fraction where it occurs (None for a lower bound).
     first_contact : (float, (str, str)) or None
         First fold fraction with a contact and the pair concerned.
     worst_pairs : list of ((str, str), float, float)
@@ -111,6 +113,7 @@ class ClearanceReport:
     table: list[StateRow]
     margin: float
     tol: Tolerances = field(default=DEFAULT_TOL, repr=False)
+    lower_bound: bool = False
 
     @property
     def collides(self) -> bool:
@@ -121,7 +124,10 @@ class ClearanceReport:
         """Plain-text summary naming the pairs and fold fractions."""
         lines = [f"clearance sweep of a {self.method} plan over {len(self.table)} states"]
         if self.where is None:
-            lines.append(f"no two slabs came within the {self.margin:g} mm margin")
+            lines.append(
+                f"minimum clearance at least {self.margin:g} mm: the closest slabs of some state stay "
+                f"outside the {self.margin:g} mm search margin"
+            )
         else:
             (a, b), t = self.where
             lines.append(f"minimum clearance {self.min_clearance:.4f} mm between {a} and {b} at t = {t:.4f}")
@@ -145,8 +151,9 @@ class ClearanceReport:
         ax = fig.add_subplot(1, 1, 1)
         ts = np.array([r.t for r in self.table])
         vs = np.array([r.min_clearance for r in self.table])
-        vs = np.where(np.isfinite(vs), vs, self.margin)
-        ax.plot(ts, vs, "-", color="black", marker=".", markersize=3, label="minimum clearance")
+        vs = np.minimum(vs, self.margin)
+        ax.plot(ts, vs, "-", color="black", marker=".", markersize=3,
+                label=f"minimum clearance (capped at the {self.margin:g} mm search margin)")
         ax.axhline(0.0, color="black", linewidth=0.8, linestyle="--")
         if self.first_contact is not None:
             ax.axvline(self.first_contact[0], color="black", linestyle=":", label="first contact")
@@ -426,17 +433,29 @@ def clearance(
             contacts = int(np.count_nonzero(r.values <= tol.contact))
             if contacts and first_contact is None:
                 first_contact = (t, pair)  # type: ignore[assignment]
-            if m < overall[0]:
-                overall = (m, pair, t)  # type: ignore[assignment]
+        else:
+            m, pair, contacts = math.inf, None, 0
+        # pairs outside the margin are not measured, so a state whose closest measured pair is
+        # farther than the margin only proves "at least margin"
+        if m >= margin:
+            if margin < overall[0]:
+                overall = (float(margin), None, t)  # type: ignore[assignment]
+        elif m < overall[0]:
+            overall = (m, pair, t)  # type: ignore[assignment]
+        if len(r.values):
             for key, val in zip(r.keys.tolist(), r.values.tolist(), strict=True):
                 old = best_by_pair.get(key)
                 if old is None or val < old[0]:
                     best_by_pair[key] = (val, t)
-        else:
-            m, pair, contacts = math.inf, None, 0
         table.append(StateRow(t, m, pair, r.candidates, contacts, refined))
-    worst = sorted(best_by_pair.items(), key=lambda kv: (kv[1][0], kv[0]))[:10]
+    within = {k: v for k, v in best_by_pair.items() if v[0] < margin}
+    worst = sorted(within.items(), key=lambda kv: (kv[1][0], kv[0]))[:10]
     where = None if overall[1] is None else (overall[1], overall[2])
+    # pairs that count at all: every panel pair except hinge/vertex neighbours (which may touch)
+    n_pairs = n_panels * (n_panels - 1) // 2 - len(np.unique(nkeys))
+    bounded = overall[1] is None and n_pairs > 0
+    if not bounded and overall[1] is None:
+        overall = (math.inf, None, math.nan)
     return ClearanceReport(
         method=plan.method,
         min_clearance=float(overall[0]),
@@ -446,6 +465,7 @@ def clearance(
         table=table,
         margin=float(margin),
         tol=tol,
+        lower_bound=bool(bounded),
     )
 
 

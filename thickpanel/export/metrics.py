@@ -68,7 +68,11 @@ def metrics(partset: PartSet, state: Any = None, clearance: Any = None) -> dict[
         "min_clearance_mm": None,
     }
     if clearance is not None:
-        out["min_clearance_mm"] = round(float(clearance.min_clearance), 6)
+        mc = float(clearance.min_clearance)
+        # JSON has no infinity: a path with no pair of slabs that counts has no minimum
+        out["min_clearance_mm"] = round(mc, 6) if np.isfinite(mc) else None
+        if getattr(clearance, "lower_bound", False):
+            out["min_clearance_lower_bound"] = True
         where = getattr(clearance, "where", None)
         if where is not None:
             out["min_clearance_where"] = str(where)

@@ -372,7 +372,10 @@ def render_report(res: Any) -> str:
     if rep is not None:
         where = getattr(rep, "where", None)
         txt = f"Minimum clearance {float(rep.min_clearance):.3f} mm"
-        if where:
+        if getattr(rep, "lower_bound", False):
+            txt = (f"Minimum clearance at least {float(rep.min_clearance):.3f} mm (no two slabs came within "
+                   "the sweep's search margin in some state)")
+        elif where:
             (a, b), t = where
             txt += f" between {a} and {b} at t = {float(t):.3f}"
         parts.append(f"<p>{_e(txt)}; the design requires at least {d.checks.min_clearance:g} mm.</p>")
