@@ -1,8 +1,8 @@
 """`make demo`: run ``thickpanel build`` on the flagship example and say where everything went.
 
-The flagship is ``examples/miura-reference.toml`` (the bundled starter of the same name when the
-examples folder is not there, e.g. in an installed copy). Exports go to ``exports/<name>/`` in the
-current directory.
+The flagship is ``examples/sun-shade-disc.toml``, a 1.2 m spiral sun-shade disc (the bundled
+starter of the same name when the examples folder is not there, e.g. in an installed copy).
+Exports go to ``exports/<name>/`` in the current directory.
 """
 
 from __future__ import annotations
@@ -10,7 +10,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-FLAGSHIP = "miura-reference"
+FLAGSHIP = "sun-shade-disc"
 
 
 def flagship_file() -> Path:
