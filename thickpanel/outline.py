@@ -24,7 +24,6 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from .errors import HingeError
-from .geometry2d import polygon_area
 from .pattern import cid
 from .tolerances import Tolerances
 from .typing import FloatArray
@@ -289,6 +288,18 @@ def _feature_numbers(feats: SideFeatures) -> tuple[tuple, FloatArray]:
 
 
 def describe_panel(slab: Slab, poly: FloatArray, groups: list, material: str) -> PanelDescription:
+    """The full feature description of one panel in its flat sheet frame (see
+    :class:`PanelDescription`), for :func:`rigid_match`.
+
+    Parameters
+    ----------
+    slab : Slab
+    poly : (k, 2) float, mm
+        The slab outline with its hinge notches, counter-clockwise.
+    groups : list of (HingeFrame, side, SideFeatures, HingeDesign)
+        The panel's hinge lines, as the solid builder collects them.
+    material : str
+    """
     planes = np.array([[*c.normal, c.offset] for c in slab.cuts], dtype=float).reshape(-1, 4)
     frames = np.array([[fr.origin, fr.s, fr.u, fr.w] for fr, *_ in groups],
                       dtype=float).reshape(-1, 4, 3)
@@ -300,11 +311,13 @@ def describe_panel(slab: Slab, poly: FloatArray, groups: list, material: str) ->
     creases = [g[3].crease for g in groups]
     standoffs = [(creases.index(st.crease) if st.crease in creases else -1,
                   np.asarray(st.polygon, dtype=float), st.z0, st.z1) for st in slab.standoffs]
-    d = poly[np.r_[1:len(poly), 0]] - poly
+    nxt = poly[np.r_[1:len(poly), 0]]
+    d = nxt - poly
     perimeter = float(np.hypot(d[:, 0], d[:, 1]).sum())
+    area = 0.5 * float(poly[:, 0] @ nxt[:, 1] - nxt[:, 0] @ poly[:, 1])  # shoelace formula
     # coarse bucket: only decides which earlier panels are compared, never whether they match
     bucket = (len(poly), len(planes), len(groups), len(standoffs), material,
-              round(float(polygon_area(poly)), _BUCKET_DIGITS), round(perimeter, _BUCKET_DIGITS))
+              round(area, _BUCKET_DIGITS), round(perimeter, _BUCKET_DIGITS))
     return PanelDescription(poly, (slab.z0, slab.z1), material, planes, frames, feats, values, standoffs,
                  bucket)
 
@@ -329,16 +342,13 @@ def _pair(n_a: int, n_b: int, ok: Callable[[int, int], bool]) -> list[int] | Non
     return out
 
 
-def _plane_ok(pl: FloatArray, q: FloatArray, tol: Tolerances, i: int, j: int) -> bool:
-    return bool(np.abs(pl[i, :3] - q[j, :3]).max() <= tol.angle
-                and abs(pl[i, 3] - q[j, 3]) <= tol.merge)
+def _plane_ok(ok: np.ndarray, i: int, j: int) -> bool:
+    return bool(ok[i, j])
 
 
-def _group_ok(fr: FloatArray, p: PanelDescription, q: PanelDescription, tol: Tolerances, i: int,
+def _group_ok(geo: np.ndarray, p: PanelDescription, q: PanelDescription, tol: Tolerances, i: int,
               j: int) -> bool:
-    return bool(p.feats[i] == q.feats[j]
-                and np.abs(fr[i, 0] - q.frames[j, 0]).max() <= tol.merge
-                and np.abs(fr[i, 1:] - q.frames[j, 1:]).max() <= tol.angle
+    return bool(geo[i, j] and p.feats[i] == q.feats[j]
                 and np.abs(p.values[i] - q.values[j]).max(initial=0.0) <= tol.merge)
 
 
@@ -374,11 +384,21 @@ def rigid_match(p: PanelDescription, q: PanelDescription, tol: Tolerances) -> Fl
         t3 = np.array([t[0], t[1], 0.0])
         n = p.planes[:, :3] @ r3.T  # p's features carried into q's frame
         pl = np.column_stack([n, p.planes[:, 3] + n @ t3])
-        if _pair(len(pl), len(q.planes), partial(_plane_ok, pl, q.planes, tol)) is None:
+        if len(pl) != len(q.planes):
+            return None
+        ok = ((np.abs(pl[:, None, :3] - q.planes[None, :, :3]).max(axis=-1, initial=0.0)
+               <= tol.angle) & (np.abs(pl[:, None, 3] - q.planes[None, :, 3]) <= tol.merge))
+        if _pair(len(pl), len(q.planes), partial(_plane_ok, ok)) is None:
             continue
         fr = p.frames @ r3.T
         fr[:, 0] += t3
-        gmap = _pair(len(fr), len(q.frames), partial(_group_ok, fr, p, q, tol))
+        if len(fr) != len(q.frames):
+            return None
+        geo = ((np.abs(fr[:, None, 0] - q.frames[None, :, 0]).max(axis=-1, initial=0.0)
+                <= tol.merge)
+               & (np.abs(fr[:, None, 1:] - q.frames[None, :, 1:]).max(axis=(-2, -1), initial=0.0)
+                  <= tol.angle))
+        gmap = _pair(len(fr), len(q.frames), partial(_group_ok, geo, p, q, tol))
         if gmap is None:
             continue
         st = [(g, fp @ r.T + t, z0, z1) for g, fp, z0, z1 in p.standoffs]

@@ -403,7 +403,7 @@ def _copy_part(proto: Part, slab: Slab, poly: FloatArray, m: FloatArray,
     attrs["prototype"] = proto.name
     return Part(
         pid(slab.panel), "panel", shape, frame_shape, proto.material, proto.volume, slab.panel,
-        slab.thickness, float(polygon_area(poly)), poly, holes,
+        slab.thickness, proto.area, poly, holes,
         [(layer, seg @ m[:2, :2].T + m[:2, 3]) for layer, seg in proto.bevels],
         proto.hinge_count, proto.pins, attrs, pieces,
     )
