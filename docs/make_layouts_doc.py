@@ -45,6 +45,8 @@ VARIANTS: dict[str, list[tuple[str, dict[str, Any]]]] = {
         ("6 arms, 2 rings, symmetric", dict(arms=6, rings=2, outer_diameter=300.0)),
         ("6 arms, 2 rings, chiral", dict(arms=6, rings=2, outer_diameter=300.0, symmetric=False, pitch_deg=50.0)),
         ("6 arms, 2 rings, 1 slit", dict(arms=6, rings=2, outer_diameter=300.0, slits=1)),
+        ("8 arms, 3 rings, 4 slits", dict(arms=8, rings=3, outer_diameter=600.0, slits=4)),
+        ("8 arms, 3 rings, 8 slits", dict(arms=8, rings=3, outer_diameter=600.0, slits=8)),
     ],
     "spiral-rings": [("6 arms, 2 rings", dict(arms=6, rings=2, outer_diameter=300.0))],
     "spiral-radial": [("6 arms, 2 rings", dict(arms=6, rings=2, outer_diameter=300.0))],
