@@ -38,6 +38,10 @@ class Tolerances:
         Absolute tolerance of scalar root solves of layout parameters (rad, or dimensionless for
         log-ratios). 1e-14 leaves Kawasaki residuals of solved spiral lattices near 1e-15 rad,
         well inside ``kawasaki``.
+    setback : float, mm
+        Extra set-back added to each computed hinge set-back of the offset-panel method beyond
+        the bisected minimum (covers bisection resolution and round-off; 1 um, below machining
+        resolution).
     """
 
     merge: float = 1e-6
@@ -48,6 +52,7 @@ class Tolerances:
     closure: float = 1e-9
     contact: float = 1e-6
     solve: float = 1e-14
+    setback: float = 1e-3
 
     def __post_init__(self) -> None:
         for name, value in self.__dict__.items():

@@ -217,11 +217,13 @@ def make_hinge(
     fold_range: tuple[float, float],
     clear: tuple[float, float] = (0.0, 0.0),
     shift: tuple[float, float] = (0.0, 0.0),
+    setback: tuple[float, float] = (0.0, 0.0),
 ) -> HingeLine:
     """A :class:`HingeLine` on crease ``c`` at height ``z`` (mm) in the flat frame.
 
     ``shift`` moves the axis in the sheet plane (mm, along the crease's left normal), ``clear``
-    trims the usable length at the first and second vertex (mm).
+    trims the usable length at the first and second vertex (mm), ``setback`` records how far the
+    (left, right) slab edges stand back from the axis (mm).
     """
     v0, v1 = pattern.creases[c]
     p0 = pattern.vertices[v0]
@@ -240,6 +242,7 @@ def make_hinge(
         gap=float(gap),
         usable=(float(clear[0]), float(max(clear[0], ln - clear[1]))),
         fold_range=(float(fold_range[0]), float(fold_range[1])),
+        setback=(float(setback[0]), float(setback[1])),
     )
 
 

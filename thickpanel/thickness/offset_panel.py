@@ -12,14 +12,23 @@ in the stowed state share the line with disjoint slots. For flat-folding targets
 vertex gets a clearance cut (no vertex whose panels keep full thickness to the vertex folds
 completely flat).
 
+Each slab edge along a folding crease stands back from the axis by the smallest set-back that keeps
+the two slabs' sections apart over the crease's fold range (:mod:`.setback`, our own derivation);
+given a fold path, standoffs that the clearance sweep finds inside other panels near the vertices
+are shortened from their vertex ends, and for partial folds vertex clearances are added when that
+is not enough and they fit.
+
 Known limit: where a stowed hinge line crosses the interior of panels lying between its panel and
-the hinge plane (as in a flat-folded Miura-ori), the standoffs pass through those panels; windows in
-them are not generated and the clearance sweep reports the contact.
+the hinge plane (as in a many-layer Miura-ori stack), the standoffs pass through those panels;
+windows in them are not generated, the plan's notes name the standoffs no trim clears and the
+clearance sweep reports the contact.
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
+from dataclasses import replace
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -43,6 +52,7 @@ from .common import (
 )
 from .layers import LayerOrder, clip_convex, layer_order
 from .plan import Slab, Standoff, ThickPlan
+from .setback import SETBACK_SAMPLES, crease_setbacks, trim_standoffs
 
 if TYPE_CHECKING:
     from ..pattern import CreasePattern
@@ -192,6 +202,9 @@ def build(
     order: LayerOrder | None = None,
     knuckles: int = 3,
     stack_tol: float | None = None,
+    setbacks: Mapping[int, tuple[float, float]] | None = None,
+    setback_samples: int = SETBACK_SAMPLES,
+    hinge_plane: float | None = None,
     tol: Tolerances = DEFAULT_TOL,
 ) -> ThickPlan:
     """Offset-panel slabs with standoffs.
@@ -202,10 +215,13 @@ def build(
         Its last state gives the layer order; without it a state is composed from the final fold
         angles (exact only for patterns whose target angles close).
     standoff_width : float, mm, optional
-        Width of each standoff strip into its panel; default the panel thickness.
+        Smallest width of each standoff strip into its panel (the floor of the hinge set-backs);
+        default the panel thickness.
     vertex_clearance : bool, optional
-        Cut corners at interior vertices; default on for flat-folding targets
-        (``target_fold >= FLAT_FRACTION * pi``) whose panels need standoffs.
+        Cut corners at interior vertices. Default: on for flat-folding targets
+        (``target_fold >= FLAT_FRACTION * pi``) whose panels need standoffs; for smaller targets
+        with a ``path``, on when the clearance sweep of the plan without them shows penetration
+        and the plan with them is clearer (the choice is named in the plan's notes).
     order : LayerOrder, optional
         A precomputed layer order.
     knuckles : int
@@ -215,7 +231,120 @@ def build(
     stack_tol : float, mm, optional
         Hinge lines closer than this in the stowed state share one stack and interleave their
         knuckles; default the largest slab thickness.
+    setbacks : mapping crease -> (left, right) mm, optional
+        Set-backs of the two slab edges from the axis imposed instead of computed ones (used as
+        given; the clearance sweep judges them).
+    setback_samples : int
+        Fold angles sampled over each crease's fold range for the set-back computation
+        (:func:`.setback.crease_setbacks`), refined around the worst ones.
+    hinge_plane : float, mm, optional
+        Height of the hinge plane above the bottom face of the stowed stack; default the height
+        that minimises the longest standoff (:func:`reference_height`).
+
+    Each slab edge along a folding crease is set back from the axis by the smallest distance for
+    which the two slabs' sections never overlap over the crease's fold range
+    (:func:`.setback.hinge_setbacks`); the standoff fills the strip between axis and edge, the two
+    set-backs are recorded on ``HingeLine.setback`` (``gap`` stays 0: the standoffs reach the
+    axis, so hinge hardware spans no empty gap).
+
+    Raises
+    ------
+    ThicknessError
+        Bad parameters, no layer order, no hinge length left, or a crease no set-back clears
+        (each naming the crease, panel or parameter and the allowed range).
     """
+    kw: dict[str, Any] = dict(
+        thickness=thickness, target_fold=target_fold, path=path, standoff_width=standoff_width, order=order,
+        knuckles=knuckles, stack_tol=stack_tol, setbacks=setbacks, setback_samples=setback_samples,
+        hinge_plane=hinge_plane, tol=tol,
+    )
+    target = check_target(target_fold, method=NAME)
+    auto = vertex_clearance is None and path is not None and target < math.pi * FLAT_FRACTION
+    first = _build_plan(pattern, vertex_clearance=False if auto else vertex_clearance, **kw)
+    if path is None:
+        return first
+    plan, rep = _trimmed(first, path, tol=tol)
+    if not auto or not rep.collides:
+        return plan
+    try:
+        cut, rep_cut = _trimmed(_build_plan(pattern, vertex_clearance=True, **kw), path, tol=tol)
+    except ThicknessError as err:
+        return replace(plan, notes=plan.notes + (f"vertex clearances not applied: {err}",))
+    if rep_cut.min_clearance > rep.min_clearance:
+        why = (
+            f"vertex clearances added: without them {'-'.join(rep.where[0])} penetrate by "
+            f"{-rep.min_clearance:.4g} mm at t = {rep.where[1]:.3f}"
+            if rep.where is not None else "vertex clearances added: the plan without them collides"
+        )
+        return replace(cut, notes=cut.notes + (why,))
+    return plan
+
+
+def _fresh_meta(plan: ThickPlan) -> dict:
+    """The plan's meta without the clearance sweep's cached pieces."""
+    return {k: val for k, val in plan.meta.items() if not (isinstance(k, tuple) and k and k[0] == "pieces")}
+
+
+def _trimmed(plan: ThickPlan, path: FoldPath, *, tol: Tolerances) -> tuple[ThickPlan, Any]:
+    """``plan`` with standoffs that penetrate other panels shortened (:func:`.setback.trim_standoffs`),
+    and its clearance report; the hinge's usable length shrinks to its remaining standoffs."""
+    from ..clearance import clearance
+
+    rep = clearance(plan, path, tol=tol)
+    if not rep.collides or plan.meta["longest_standoff"] <= tol.length:
+        return plan, rep
+    pattern = plan.pattern
+    slabs, notes = list(plan.slabs), []
+    tried: set[int] = set()
+    while True:  # worst_pairs names at most ten pairs: trim, sweep again, trim the newly named
+        involved = {int(x[1:]) for ids, val, _ in rep.worst_pairs if val < -tol.contact for x in ids} - tried
+        if not involved:
+            break
+        tried |= involved
+        slabs, more = trim_standoffs(pattern, slabs, path, panels=involved, tol=tol)
+        notes += more
+        rep = clearance(replace(plan, slabs=tuple(slabs), meta=_fresh_meta(plan)), path, tol=tol)
+        if not rep.collides:
+            break
+    v = pattern.vertices
+    span: dict[int, list[float]] = {}
+    for slab in slabs:
+        for st in slab.standoffs:
+            a_, b_ = pattern.creases[st.crease]
+            u = (v[b_] - v[a_]) / float(pattern.crease_lengths[st.crease])
+            ax = (np.asarray(st.polygon, float) - v[a_]) @ u
+            sp = span.setdefault(st.crease, [math.inf, -math.inf])
+            sp[0], sp[1] = min(sp[0], float(ax.min())), max(sp[1], float(ax.max()))
+    hinges = []
+    for h in plan.hinges:
+        got = span.get(h.crease)
+        if got is not None and got[1] > got[0]:
+            lo_u, hi_u = max(h.usable[0], got[0]), min(h.usable[1], got[1])
+            if hi_u > lo_u:
+                h = replace(h, usable=(lo_u, hi_u))
+        hinges.append(h)
+    out = replace(plan, slabs=tuple(slabs), hinges=tuple(hinges), notes=plan.notes + tuple(notes),
+                  meta=_fresh_meta(plan))
+    return out, clearance(out, path, tol=tol)
+
+
+def _build_plan(
+    pattern: CreasePattern,
+    *,
+    thickness: Any,
+    target_fold: float,
+    path: FoldPath | None = None,
+    standoff_width: float | None = None,
+    vertex_clearance: bool | None = None,
+    order: LayerOrder | None = None,
+    knuckles: int = 3,
+    stack_tol: float | None = None,
+    setbacks: Mapping[int, tuple[float, float]] | None = None,
+    setback_samples: int = SETBACK_SAMPLES,
+    hinge_plane: float | None = None,
+    tol: Tolerances = DEFAULT_TOL,
+) -> ThickPlan:
+    """Build the plan with vertex clearances decided (see :func:`build`)."""
     target = check_target(target_fold, method=NAME)
     t = panel_thicknesses(pattern, thickness)
     fc = require_folding(pattern, NAME)
@@ -239,6 +368,18 @@ def build(
         order = layer_order(pattern, state, thickness=t, tol=tol)
         state_for_order = state
     shift, longest = reference_height(order.base, t)
+    if hinge_plane is not None:
+        top = float(np.max(order.base + t))
+        try:
+            hp = math.nan if isinstance(hinge_plane, bool) else float(hinge_plane)
+        except (TypeError, ValueError):
+            hp = math.nan
+        if not (math.isfinite(hp) and 0.0 <= hp <= top):
+            raise ThicknessError(
+                f"hinge_plane = {hinge_plane!r} mm is out of range; allowed: 0..{top:.4g} mm above the stack bottom"
+            )
+        shift = -hp
+        longest = max(0.0, float(np.max(order.base)) - hp, hp - float(np.min(order.base + t)))
     if vertex_clearance is None:
         # a flat-folding design needs them: no vertex whose panels keep full thickness to the
         # vertex folds completely flat (for partial folds, ask with vertex_clearance=True when the
@@ -267,9 +408,13 @@ def build(
     n_k = int(knuckles)
     if n_k < 1:
         raise ThicknessError(f"knuckles = {knuckles!r} is out of range; allowed: a whole number >= 1")
+    setback_of = crease_setbacks(
+        pattern, fc, z_of, t, target=target, path=path, standoff_width=standoff_width,
+        setbacks=setbacks, samples=setback_samples, tol=tol,
+    )
     for c in fc:
-        for p in (int(cp[c, 0]), int(cp[c, 1])):
-            inset[(p, c)] = float(standoff_width) if standoff_width is not None else float(t[p])
+        for side, p in enumerate((int(cp[c, 0]), int(cp[c, 1]))):
+            inset[(p, c)] = setback_of[c][side]
     inset_polys = [inset_polygon(pattern, p, inset, tol=tol) for p in range(pattern.n_panels)]
     clears: dict[int, tuple[float, float]] = {}
     for c in fc:
@@ -334,7 +479,10 @@ def build(
         kind = pattern.kinds[c]
         rng = (0.0, math.pi) if kind == "valley" else (-math.pi, 0.0)
         hinges.append(
-            make_hinge(pattern, c, z=0.0, face="reference", gap=0.0, fold_range=rng, clear=(clear0, clear1))
+            make_hinge(
+                pattern, c, z=0.0, face="reference", gap=0.0, fold_range=rng, clear=(clear0, clear1),
+                setback=setback_of[c],
+            )
         )
     for p in range(pattern.n_panels):
         poly = tuple((float(x), float(y)) for x, y in inset_polys[p])
@@ -346,5 +494,6 @@ def build(
             f"{int(order.level.max()) + 1} layers; longest standoff {longest:.4g} mm",
             "hinge axes on the zero-thickness creases: fold angles equal the zero-thickness ones",
         ),
-        meta={"layers": order, "longest_standoff": longest, "vertex_radii": radii},
+        meta={"layers": order, "longest_standoff": longest, "vertex_radii": radii, "setbacks": setback_of},
     )
+

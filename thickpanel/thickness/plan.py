@@ -118,6 +118,9 @@ class HingeLine:
         after vertex clearances.
     fold_range : (float, float), rad
         Signed fold angles this hinge can reach without the slabs colliding across it.
+    setback : (float, float), mm
+        Distance of the (left, right) slab edges from the axis where standoffs bridge it (the
+        offset-panel method); ``gap`` stays the empty width hinge hardware must span.
     """
 
     crease: int
@@ -128,6 +131,7 @@ class HingeLine:
     gap: float
     usable: tuple[float, float]
     fold_range: tuple[float, float]
+    setback: tuple[float, float] = (0.0, 0.0)
 
     @property
     def usable_length(self) -> float:
