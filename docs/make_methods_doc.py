@@ -62,7 +62,10 @@ METHOD_ROWS = [
         ),
         (
             'layer order from the fold state nearest the final fold; vertex clearance `r = stack / (2 '
-            'tan(alpha/2))` for flat targets [derived]'
+            'tan(alpha/2))` for flat targets [derived]; slab edges set back from each axis by the smallest '
+            'distance keeping the two slabs\' sections apart over the crease\'s fold range (bisection on exact '
+            '2D overlap) [derived]; standoffs the sweep finds inside other panels are shortened at their vertex '
+            'ends'
         ),
         (
             'Edmondson, Lang, Magleby & Howell, ASME IDETC 2014; Morgan et al. 2016, Mech. Sci. 7:69, '
