@@ -137,3 +137,24 @@ def test_thick_miura_flat_folding_target_clears_over_full_path():
     assert plan.meta["vertex_radii"]
     rep = clearance(plan, path)
     assert not rep.collides and rep.min_clearance >= 0.0
+
+
+def test_sixteen_layer_miura_150_clears_after_standoff_trimming():
+    # Edmondson et al. 2014; Morgan et al. 2016 (offset-panel Miura clears its whole path). This
+    # 4x4 sheet stows in 16 layers at 150 deg; without trimming, standoffs of C004 and others passed
+    # through neighbouring panels (P004-P005 by 2.1 mm in the methods doc before this change).
+    cp = make_layout("miura", a=20.0, b=12.0, gamma_deg=60.0, nx=4, ny=4)
+    target = math.radians(150)
+    path = fold_path(cp, target=target, n_states=30)
+    plan = make_plan(cp, "offset-panel", thickness=1.0, target_fold=target, path=path)
+    assert any("shortened" in n for n in plan.notes)
+    rep = clearance(plan, path)
+    assert not rep.collides and rep.min_clearance >= 0.0
+    # every remaining standoff still reaches its axis and lies within its hinge's usable length
+    for slab in plan.slabs:
+        for st in slab.standoffs:
+            h = plan.hinge_for(st.crease)
+            v0 = cp.vertices[cp.creases[st.crease, 0]]
+            along = (np.asarray(st.polygon) - v0) @ cp.crease_directions[st.crease]
+            assert along.min() >= h.usable[0] - 1e-9 and along.max() <= h.usable[1] + 1e-9
+            assert min(st.z0, st.z1) <= 0.0 <= max(st.z0, st.z1)

@@ -61,6 +61,8 @@ if TYPE_CHECKING:
 NAME = "offset-panel"
 FLAT_FRACTION = 0.97
 """Targets at or above this fraction of pi count as flat-folding designs (vertex clearances on)."""
+TRIM_ROUNDS = 4
+"""Rounds of sweep-then-trim (each sweep names at most ten colliding pairs)."""
 
 
 def reference_height(base: np.ndarray, t: np.ndarray) -> tuple[float, float]:
@@ -295,13 +297,18 @@ def _trimmed(plan: ThickPlan, path: FoldPath, *, tol: Tolerances) -> tuple[Thick
         return plan, rep
     pattern = plan.pattern
     slabs, notes = list(plan.slabs), []
-    tried: set[int] = set()
-    while True:  # worst_pairs names at most ten pairs: trim, sweep again, trim the newly named
-        involved = {int(x[1:]) for ids, val, _ in rep.worst_pairs if val < -tol.contact for x in ids} - tried
-        if not involved:
+    tried: set[tuple[int, float]] = set()
+    extra: set[float] = set()
+    for _ in range(TRIM_ROUNDS):  # worst_pairs names at most ten pairs: trim, sweep again, trim the newly named
+        bad = [(int(x[1:]), float(t)) for ids, val, t in rep.worst_pairs if val < -tol.contact for x in ids]
+        new = {b for b in bad if b not in tried}
+        if not new:
             break
-        tried |= involved
-        slabs, more = trim_standoffs(pattern, slabs, path, panels=involved, tol=tol)
+        tried |= new
+        extra |= {t for _, t in new if not any(abs(t - float(st.t)) <= tol.angle for st in path.states)}
+        slabs, more = trim_standoffs(
+            pattern, slabs, path, panels={p for p, _ in new}, extra_t=tuple(sorted(extra)), tol=tol
+        )
         notes += more
         rep = clearance(replace(plan, slabs=tuple(slabs), meta=_fresh_meta(plan)), path, tol=tol)
         if not rep.collides:

@@ -330,6 +330,7 @@ def trim_standoffs(
     path: FoldPath,
     *,
     panels: set[int] | None = None,
+    extra_t: tuple[float, ...] = (),
     tol: Tolerances = DEFAULT_TOL,
 ) -> tuple[list[Slab], list[str]]:
     """Shorten standoffs that penetrate other panels near the vertices over ``path``.
@@ -345,6 +346,9 @@ def trim_standoffs(
     panels : set of int, optional
         Only the standoffs of these panels are tested (e.g. the panels of the colliding pairs of
         a clearance sweep); default all.
+    extra_t : tuple of float
+        Fold fractions tested besides the path's states (``path.at(t)``, e.g. where a refined
+        sweep found contact).
 
     Returns
     -------
@@ -360,7 +364,8 @@ def trim_standoffs(
     from ..collide import pack_pieces, sat_gaps
 
     out = list(slabs)
-    poses = np.array([np.asarray(st.poses, float) for st in path.states])  # (S, P, 4, 4)
+    states = list(path.states) + [path.at(float(x)) for x in extra_t]
+    poses = np.array([np.asarray(st.poses, float) for st in states])  # (S, P, 4, 4)
     notes: list[str] = []
     v = pattern.vertices
 
@@ -388,7 +393,7 @@ def trim_standoffs(
         if panels is not None and p not in panels:
             continue
         others = others_of(p)
-        new_st = list(slab.standoffs)
+        new_st: list[Standoff | None] = list(slab.standoffs)
         for k, st in enumerate(slab.standoffs):
             probe = replace(slab, polygon=st.polygon, z0=st.z0, z1=st.z1, standoffs=(), cuts=tuple(
                 c for c in slab.cuts if c.label.startswith("vertex")))
@@ -402,38 +407,49 @@ def trim_standoffs(
             ax = (poly - v[a_]) @ u
             lo_s, hi_s = float(ax.min()), float(ax.max())
             width = float(np.max(np.abs((poly - v[a_]) @ np.array([-u[1], u[0]]))))
-            from_lo = lo_s <= ln - hi_s
+            near_lo = lo_s <= ln - hi_s
             base = float(v[a_] @ u)
+            keep = max(width, tol.length)
+            d_max = hi_s - lo_s - keep
 
-            def trimmed(d: float, lo_s: float = lo_s, hi_s: float = hi_s, from_lo: bool = from_lo,
+            def trimmed(d: float, from_lo: bool, lo_s: float = lo_s, hi_s: float = hi_s,
                         poly: np.ndarray = poly, u: np.ndarray = u, base: float = base) -> np.ndarray:
                 if from_lo:
                     return _clip_axial(poly, u, base + lo_s + d, None)
                 return _clip_axial(poly, u, None, base + hi_s - d)
 
-            def clears(d: float, st: Standoff = st, p: int = p, others: list[Any] = others,
+            def clears(d: float, from_lo: bool, st: Standoff = st, p: int = p, others: list[Any] = others,
                        trimmed: Any = trimmed, slab: Slab = slab) -> bool:
-                q = trimmed(d)
+                q = trimmed(d, from_lo)
                 pr = replace(slab, polygon=tuple(map(tuple, q)), z0=st.z0, z1=st.z1, standoffs=(), cuts=tuple(
                     cc for cc in slab.cuts if cc.label.startswith("vertex")))
                 return penetration(p, slab_pieces(pr, tol=tol), others) <= tol.contact
 
-            d_max = hi_s - lo_s - max(width, tol.length)
-            if d_max <= 0 or not clears(d_max):
-                notes.append(
+            # the end nearer a vertex first, then the other end (a panel lying across the hinge line)
+            ends = [e for e in (near_lo, not near_lo) if d_max > 0 and clears(d_max, e)]
+            if not ends:
+                kept = sum(1 for j, o in enumerate(new_st) if o is not None and o.crease == c and j != k)
+                what = (
                     f"standoff of {pid(p)} on {cid(c)} ({lo_s:.4g}..{hi_s:.4g} mm along the crease) penetrates "
-                    f"another panel and no trim keeping {max(width, tol.length):.3g} mm of it clears"
+                    f"another panel and no trim from either end keeping {keep:.3g} mm of it clears"
                 )
+                if kept:
+                    new_st[k] = None
+                    notes.append(f"{what}: removed ({pid(p)} keeps {kept} on {cid(c)})")
+                else:
+                    notes.append(f"{what}; it is the panel's only one there and stays")
                 continue
+            from_lo = ends[0]
             lo_d, hi_d = 0.0, d_max
             while hi_d - lo_d > tol.setback:
                 mid = (lo_d + hi_d) / 2.0
-                if clears(mid):
+                if clears(mid, from_lo):
                     hi_d = mid
                 else:
                     lo_d = mid
-            q = trimmed(hi_d)
+            q = trimmed(hi_d, from_lo)
             new_st[k] = replace(st, polygon=tuple((float(x), float(y)) for x, y in q))
-            notes.append(f"standoff of {pid(p)} on {cid(c)} shortened by {hi_d:.3g} mm at its vertex end")
-        out[idx] = replace(slab, standoffs=tuple(new_st))
+            where = "vertex" if from_lo == near_lo else "far"
+            notes.append(f"standoff of {pid(p)} on {cid(c)} shortened by {hi_d:.3g} mm at its {where} end")
+        out[idx] = replace(slab, standoffs=tuple(o for o in new_st if o is not None))
     return out, notes
