@@ -120,6 +120,13 @@ def _check_flagship(s: dict, files: list[Path]) -> None:
     assert m["vertices"] - m["creases"] + m["panels"] == 1
     assert 20 <= m["panels"] <= 150
     assert {f.suffix for f in files} >= {".step", ".stl", ".3mf", ".dxf", ".csv", ".json"}
+    # one definition of the sizes: the summary and the stowed metrics.json agree on the deployed
+    # diameter (the rim's circumscribed circle, 1200 mm across: CRC Standard Mathematical Tables)
+    assert m["deployed_diameter_mm"] == pytest.approx(1200.0, rel=1e-9)
+    stowed = [f for f in files if f.name == "metrics.json" and f.parent.name == "t1.00"]
+    assert stowed
+    met = json.loads(stowed[0].read_text())
+    assert met["deployed_diameter_mm"] == pytest.approx(m["deployed_diameter_mm"], rel=1e-9)
     for f in files:
         if f.suffix == ".3mf":  # OPC ZIP package with a .model part (3MF Core Specification 1.2)
             with zipfile.ZipFile(f) as z:

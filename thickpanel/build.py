@@ -28,10 +28,11 @@ from typing import Any
 import numpy as np
 
 from .design import Design, suggest
+from .envelope import diameter, packing_ratio, principal_frame
 from .errors import DesignFileError, ExportError, HingeError, PatternError, ThickpanelError
 
 __all__ = ["BuildResult", "run_pipeline", "run_check", "run_fold", "run_build", "run_report",
-           "default_out_dir", "principal_frame", "Progress"]
+           "default_out_dir", "Progress"]
 
 log = logging.getLogger("thickpanel")
 
@@ -542,17 +543,6 @@ def _where_text(where: Any) -> str:
         return f"at {where}"
 
 
-def principal_frame(pts: np.ndarray) -> np.ndarray:
-    """(k, 3) points expressed in their principal axes (largest spread first), mm.
-
-    The envelope of a folded array then does not depend on which panel the fold kept still. The
-    box is aligned with the principal axes of the corner points, not the smallest possible box.
-    """
-    c = pts - pts.mean(axis=0)
-    _, _, vt = np.linalg.svd(c, full_matrices=False)
-    return np.asarray(c @ vt.T)
-
-
 def _envelope(res: BuildResult) -> None:
     """Deployed and stowed boxes (mm, principal axes) of the slabs, or of the bare panels."""
     for label, t in (("deployed", 0.0), ("stowed", 1.0)):
@@ -563,11 +553,8 @@ def _envelope(res: BuildResult) -> None:
         lo, hi = pts.min(axis=0), pts.max(axis=0)
         res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
         res.metrics["envelope_from"] = got[1]
-    dep = res.metrics["deployed_envelope_mm"]
-    sto = res.metrics["stowed_envelope_mm"]
-    foot = sto[0] * sto[1]
-    res.metrics["packing_ratio"] = float(res.metrics["deployed_area_mm2"] / foot) if foot > 0 else None
-    res.metrics["deployed_diameter_mm"] = float(math.hypot(dep[0], dep[1]))
+    res.metrics["packing_ratio"] = packing_ratio(res.metrics["deployed_area_mm2"], res.metrics["stowed_envelope_mm"])
+    res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
 
 
 def _solids(run: _Run) -> None:

@@ -2,9 +2,12 @@
 
 - deployed area: sum of the panel outlines (flat), mm^2;
 - deployed diameter: largest distance between two outline corners (flat), mm;
-- stowed envelope: axis-aligned box of every part in the export's fold state, mm;
+- stowed envelope: extents along the principal axes of every part in the export's fold state
+  (panel outlines at their slab faces, hardware by its box), largest first, mm; so it does not
+  depend on which panel the fold kept still. ``stowed_box_mm`` is the axis-aligned box in the
+  assembly frame, for placing the array in CAD;
 - packing ratio: deployed area / stowed footprint, the footprint being the product of the two
-  largest envelope extents (the stack's face);
+  largest envelope extents (the stack's face); the measures live in :mod:`thickpanel.envelope`;
 - total mass, g; minimum clearance from a clearance sweep when one is given, mm.
 """
 
@@ -16,23 +19,30 @@ from typing import Any
 import numpy as np
 
 from .. import occ
+from ..envelope import diameter, packing_ratio, principal_extents
 from ..solids import PartSet
 from .bom import CAUTION
 
 __all__ = ["metrics", "metrics_json_bytes"]
 
 
-def _diameter(points: np.ndarray) -> float:
-    if len(points) < 2:
-        return 0.0
-    try:
-        from scipy.spatial import ConvexHull
-
-        pts = points[ConvexHull(points).vertices]
-    except Exception:  # degenerate (collinear) point sets: use them all
-        pts = points
-    d = pts[:, None, :] - pts[None, :, :]
-    return float(np.sqrt((d**2).sum(-1)).max())
+def _part_points(partset: PartSet, state: Any) -> np.ndarray:
+    """(k, 3) points of every part placed for ``state``: panel outlines at both slab faces,
+    other parts by the corners of their box in the panel frame, mm."""
+    poses = partset.poses(state)
+    slabs = partset.plan.slabs
+    out = []
+    for p in partset.parts:
+        if p.kind == "panel" and p.outline is not None:
+            sl = slabs[p.panel]
+            o = np.asarray(p.outline, dtype=float)
+            pts = np.vstack([np.column_stack([o, np.full(len(o), z)]) for z in (sl.z0, sl.z1)])
+        else:
+            b = occ.bbox(p.frame_shape)
+            pts = np.array([[b[i, 0], b[j, 1], b[k, 2]] for i in (0, 1) for j in (0, 1) for k in (0, 1)])
+        pose = poses[p.panel]
+        out.append(pts @ pose[:3, :3].T + pose[:3, 3])
+    return np.vstack(out)
 
 
 def _total_mass(partset: PartSet) -> float | None:
@@ -50,20 +60,18 @@ def metrics(partset: PartSet, state: Any = None, clearance: Any = None) -> dict[
     st = state if state is not None else partset.state
     shapes = partset.placed(st) if st is not None else [p.frame_shape for p in partset.parts]
     box = occ.bbox(occ.compound(shapes))
-    ext = box[1] - box[0]
-    e = np.sort(ext)
-    footprint = float(e[1] * e[2])
+    ext = principal_extents(_part_points(partset, st))
     out: dict[str, Any] = {
         "caution": CAUTION,
         "units": {"length": "mm", "area": "mm^2", "mass": "g"},
         "panels": len(panels),
         "parts": len(partset.parts),
         "deployed_area_mm2": round(area, 4),
-        "deployed_diameter_mm": round(_diameter(corners), 4),
+        "deployed_diameter_mm": round(diameter(corners), 4),
         "stowed_state_t": None if st is None or not np.isfinite(st.t) else round(float(st.t), 6),
         "stowed_envelope_mm": [round(float(x), 4) for x in ext],
         "stowed_box_mm": [[round(float(x), 4) for x in row] for row in box],
-        "packing_ratio": round(area / footprint, 6) if footprint > 0 else None,
+        "packing_ratio": None if (pr := packing_ratio(area, ext)) is None else round(pr, 6),
         "total_mass_g": _total_mass(partset),
         "min_clearance_mm": None,
     }
