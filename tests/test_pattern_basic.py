@@ -42,3 +42,16 @@ def test_seam_equality_treats_unset_angle_as_equal():
     assert hash(Seam(3, 7)) == hash(Seam(3, 7))
     assert Seam(3, 7) != Seam(3, 7, target_angle=0.5)
     assert Seam(3, 7, "mountain") != Seam(3, 7, "valley")
+
+
+def test_clip_halfplane_and_convex_intersection_areas():
+    from thickpanel.geometry2d import clip_convex, clip_halfplane, polygon_area
+
+    sq = np.array([[0.0, 0.0], [2.0, 0.0], [2.0, 2.0], [0.0, 2.0]])
+    # keep x <= 0.5: a 0.5 x 2 rectangle (elementary area)
+    assert polygon_area(clip_halfplane(sq, np.array([1.0, 0.0]), 0.5)) == pytest.approx(1.0)
+    # keep x + y <= 2: half the square, cut along its diagonal
+    assert polygon_area(clip_halfplane(sq, np.array([1.0, 1.0]), 2.0)) == pytest.approx(2.0)
+    assert len(clip_halfplane(sq, np.array([1.0, 0.0]), -1.0)) == 0
+    # two unit-offset squares overlap in a 1 x 1 square
+    assert polygon_area(clip_convex(sq, sq + [1.0, 1.0])) == pytest.approx(1.0)

@@ -18,6 +18,8 @@ __all__ = [
     "segment_candidate_pairs",
     "segment_pair_relations",
     "point_segment_distance",
+    "clip_halfplane",
+    "clip_convex",
 ]
 
 
@@ -332,3 +334,46 @@ def segment_pair_relations(
             sj[sel] = params[sel, k]
             si[sel] = 0.0 if k == 2 else 1.0
     return relation, si, sj
+
+
+def clip_halfplane(poly: FloatArray, normal: FloatArray, offset: float) -> FloatArray:
+    """Part of a polygon where ``normal . x <= offset`` (one Sutherland & Hodgman 1974 pass).
+
+    Parameters
+    ----------
+    poly : (k, 2) float, mm
+        Polygon in order (convex for a single-piece result).
+    normal : (2,) float
+    offset : float, mm
+
+    Returns
+    -------
+    (j, 2) float, mm; empty when nothing is kept.
+    """
+    out = np.asarray(poly, float)
+    if len(out) == 0:
+        return out.reshape(0, 2)
+    side = offset - out @ np.asarray(normal, float)
+    res = []
+    for k in range(len(out)):
+        p, q = out[k], out[(k + 1) % len(out)]
+        sp, sq = side[k], side[(k + 1) % len(out)]
+        if sp >= 0:
+            res.append(p)
+        if (sp >= 0) != (sq >= 0):
+            res.append(p + (sp / (sp - sq)) * (q - p))
+    return np.array(res, dtype=float).reshape(-1, 2)
+
+
+def clip_convex(subject: FloatArray, clip: FloatArray) -> FloatArray:
+    """Intersection of two convex counter-clockwise polygons (Sutherland & Hodgman 1974), (k, 2)."""
+    out = np.asarray(subject, float)
+    c = np.asarray(clip, float)
+    for i in range(len(c)):
+        if len(out) == 0:
+            break
+        a, b = c[i], c[(i + 1) % len(c)]
+        e = b - a
+        n = np.array([e[1], -e[0]])  # keeps the left side of a -> b
+        out = clip_halfplane(out, n, float(n @ a))
+    return out

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..collide import convex_parts, sweep_pairs
 from ..errors import ThicknessError
-from ..geometry2d import polygon_area, polygon_centroid
+from ..geometry2d import clip_convex, polygon_area, polygon_centroid
 from ..pattern import CreasePattern, pid
 from ..poses import FoldState
 from ..tolerances import DEFAULT_TOL, Tolerances
@@ -47,29 +47,6 @@ class LayerOrder:
     facing: IntArray
     above: list[tuple[int, int]]
     tucked: dict[int, int] = field(default_factory=dict)
-
-
-def clip_convex(subject: FloatArray, clip: FloatArray) -> FloatArray:
-    """Intersection of two convex counter-clockwise polygons (Sutherland & Hodgman 1974), (k, 2)."""
-    out = np.asarray(subject, float)
-    c = np.asarray(clip, float)
-    for i in range(len(c)):
-        if len(out) == 0:
-            break
-        a, b = c[i], c[(i + 1) % len(c)]
-        e = b - a
-        side = e[0] * (out[:, 1] - a[1]) - e[1] * (out[:, 0] - a[0])
-        res = []
-        for k in range(len(out)):
-            p, q = out[k], out[(k + 1) % len(out)]
-            sp, sq = side[k], side[(k + 1) % len(out)]
-            if sp >= 0:
-                res.append(p)
-            if (sp >= 0) != (sq >= 0):
-                w = sp / (sp - sq)
-                res.append(p + w * (q - p))
-        out = np.array(res).reshape(-1, 2)
-    return out
 
 
 def layer_order(

@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..errors import ThicknessError
+from ..geometry2d import clip_halfplane
 from ..pattern import cid, pid
 from ..tolerances import DEFAULT_TOL, Tolerances
 from .common import final_angles, inradius
@@ -308,19 +309,10 @@ def crease_setbacks(
 def _clip_axial(poly: np.ndarray, u: np.ndarray, keep_ge: float | None, keep_le: float | None) -> np.ndarray:
     """Part of a convex polygon with ``keep_ge <= u . x <= keep_le`` (Sutherland & Hodgman 1974)."""
     out = np.asarray(poly, float)
-    for n, off in ((-u, None if keep_ge is None else -keep_ge), (u, keep_le)):
-        if off is None or len(out) == 0:
-            continue
-        side = off - out @ n
-        res = []
-        for k in range(len(out)):
-            p, q = out[k], out[(k + 1) % len(out)]
-            sp, sq = side[k], side[(k + 1) % len(out)]
-            if sp >= 0:
-                res.append(p)
-            if (sp >= 0) != (sq >= 0):
-                res.append(p + (sp / (sp - sq)) * (q - p))
-        out = np.array(res).reshape(-1, 2)
+    if keep_ge is not None:
+        out = clip_halfplane(out, -u, -keep_ge)
+    if keep_le is not None:
+        out = clip_halfplane(out, u, keep_le)
     return out
 
 
