@@ -320,6 +320,10 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
     try:
         require_closed_flat(model, tol)
     except FoldError as exc:
+        from .tubes import is_tube_strip, tube_rigid_foldability
+
+        if is_tube_strip(pattern):  # a seamed tube: judged from its closed deployed state
+            return tube_rigid_foldability(pattern, tol=tol)
         return RigidVerdict("unknown", -1, (), str(exc), 0.0)
     cf = closed_form_path(model, tol=tol) if not model.cycles else None
     if cf is not None and not cf.ok:
