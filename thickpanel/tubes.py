@@ -222,6 +222,11 @@ def deployed_tube_state(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL
     return deployed_tube(pattern, tol=tol).state
 
 
+def pattern_size(pattern: CreasePattern) -> float:
+    """Largest extent of the flat strip, mm (scale for rates in mm per rad)."""
+    return float(np.ptp(pattern.vertices, axis=0).max()) or 1.0
+
+
 def _vertex_points(state: FoldState, owner: list[tuple[int, int]]) -> FloatArray:
     """(V, 3) folded position of every vertex from the pose of one panel holding it, mm."""
     out = np.empty((len(owner), 3))
@@ -237,18 +242,32 @@ def _end_rigidity_rows(pattern: CreasePattern, model: LoopModel, x: FloatArray, 
         for k, v in enumerate(panel.loop):
             if owner[v][0] < 0:
                 owner[v] = (p, k)
-    y = pattern.vertices[:, 1]
-    ends = [np.nonzero(np.isclose(y, y.min()))[0], np.nonzero(np.isclose(y, y.max()))[0]]
-    pairs = [(int(i), int(j)) for ring in ends for a, i in enumerate(ring) for j in ring[a + 1 :]]
+    bot, top = _end_rings(pattern)
+    pairs = [(int(i), int(j)) for ring in (bot, top) for a, i in enumerate(ring) for j in ring[a + 1 :]]
     h = 1e-6
     cols = []
     for v in basis.T:
         up = _vertex_points(model.state(x + h * v, 0.0), owner)
         dn = _vertex_points(model.state(x - h * v, 0.0), owner)
-        du = np.array([np.linalg.norm(up[i] - up[j]) for i, j in pairs])
-        dd = np.array([np.linalg.norm(dn[i] - dn[j]) for i, j in pairs])
+        du = np.array([np.linalg.norm(up[i] - up[j]) for i, j in pairs] + [_height(up, bot, top)])
+        dd = np.array([np.linalg.norm(dn[i] - dn[j]) for i, j in pairs] + [_height(dn, bot, top)])
         cols.append((du - dd) / (2 * h))
-    return np.array(cols).T.reshape(len(pairs), basis.shape[1])
+    return np.array(cols).T.reshape(len(pairs) + 1, basis.shape[1])
+
+
+def _end_rings(pattern: CreasePattern) -> tuple[np.ndarray, np.ndarray]:
+    """Vertex indices of the bottom and top end rings of the strip, each without its seam copy
+    (the last column, largest x, which meets the first column in the tube)."""
+    v = pattern.vertices
+    out = []
+    for ring in (np.nonzero(np.isclose(v[:, 1], v[:, 1].min()))[0], np.nonzero(np.isclose(v[:, 1], v[:, 1].max()))[0]):
+        out.append(np.delete(ring, int(np.argmax(v[ring, 0]))))
+    return out[0], out[1]
+
+
+def _height(points: FloatArray, bot: np.ndarray, top: np.ndarray) -> float:
+    """Tube height (mm): distance between the centroids of the end rings' distinct vertices."""
+    return float(np.linalg.norm(points[top].mean(axis=0) - points[bot].mean(axis=0)))
 
 
 def tube_rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) -> RigidVerdict:
@@ -282,7 +301,9 @@ def tube_rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_
         )  # fmt: skip
     _, sv, vt = np.linalg.svd(J.toarray())
     basis = vt[-dof:].T
-    rows = _end_rigidity_rows(pattern, model, x, basis)
+    full = _end_rigidity_rows(pattern, model, x, basis)
+    rows, rate = full[:-1], full[-1]
+    shortens = float(np.abs(rate).max()) > 1e-6 * pattern_size(pattern)
     s = np.linalg.svd(rows, compute_uv=False) if rows.size else np.zeros(0)
     s = np.concatenate([s, np.zeros(max(0, dof - len(s)))])
     capped = int(np.count_nonzero(s <= 1e-6 * max(float(s.max(initial=0.0)), 1e-300)))
@@ -298,6 +319,8 @@ def tube_rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_
     return RigidVerdict(
         "rigid" if sol.ok else "unknown", dof if sol.ok else -1, (),
         f"judged from the closed deployed tube (residual {dt.residual:.1e}): {dof} first-order freedom(s) of the "
-        f"fold angles with free end rings ({finite}); with both end rings held as rigid polygons {ends}",
+        f"fold angles with free end rings ({finite}; they distort the end rings"
+        f"{' and change the tube height' if shortens else ', the tube height stays'} at first order); "
+        f"with both end rings held as rigid polygons {ends}",
         _PROBE_STEP if sol.ok else 0.0,
     )  # fmt: skip
