@@ -105,3 +105,34 @@ def test_not_a_tube_strip_is_refused():
         deployed_tube(sq)
     with pytest.raises(FoldError, match="outside = 'up'; allowed"):
         deployed_tube(kresling(), outside="up")
+
+
+def test_shortening_with_rigid_ends_needs_hinge_play():
+    # Guest & Pellegrino 1994: with rigid panels and end rings kept regular, b and c fix both height
+    # and twist, so only the deployed and the folded stable states close; a tube in between needs
+    # deformation, here hinge play. The deployed tube itself closes with perfect hinges.
+    from thickpanel.tube_slack import tube_slack
+
+    cp = kresling(6, 50.0, 40.0, 40.0, 1)
+    out = tube_slack(cp, height_mm=36.0, n_states=3, ends="rigid")
+    assert out.slack.play_mm[0].max() < 1e-9
+    assert out.slack.play_mm[-1].max() > 0.5  # mm: a 4 mm shortening of a 40 mm story is not small
+    assert np.allclose(out.heights_mm, [40.0, 38.0, 36.0], atol=1e-9)
+    # the reached height, measured from the returned poses: each end-ring corner averaged over the
+    # panels holding it (they disagree by at most the hinge play), seam copies left out
+    final = out.slack.poses[-1]
+    v = cp.vertices
+    ends = []
+    for y in (v[:, 1].min(), v[:, 1].max()):
+        ring = [k for k in np.nonzero(np.isclose(v[:, 1], y))[0] if v[k, 0] < v[np.isclose(v[:, 1], y), 0].max()]
+        corners = []
+        for k in ring:
+            own = [p for p in range(cp.n_panels) if k in cp.panels[p].loop]
+            corners.append(np.mean([final[p, :3, :3] @ np.append(v[k], 0.0) + final[p, :3, 3] for p in own], axis=0))
+        ends.append(np.mean(corners, axis=0))
+    assert len(ring) == 6
+    assert abs(np.linalg.norm(ends[1] - ends[0]) - 36.0) < out.slack.play_mm[-1].max()
+    with pytest.raises(FoldError, match=r"height_mm = 50.0 mm is out of range; allowed: 0 < height_mm < 40"):
+        tube_slack(cp, height_mm=50.0)
+    with pytest.raises(FoldError, match="ends = 'loose'; allowed"):
+        tube_slack(cp, height_mm=30.0, ends="loose")
