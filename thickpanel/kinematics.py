@@ -290,7 +290,8 @@ def require_closed_flat(model: LoopModel, tol: Tolerances) -> None:
         raise FoldError(
             f"pattern {model.pattern.name!r} is closed by seams ({seams}); its flat strip does not close, so "
             "there is no flat state to fold from (reachable range of a flat start: none). Fold paths from a "
-            "closed deployed tube are not modelled yet"
+            "closed deployed tube are not followed; thickpanel.tubes.deployed_tube builds a Kresling strip's deployed "
+            "tube and thickpanel.tube_slack.tube_slack its shortening with hinge play"
         )
 
 

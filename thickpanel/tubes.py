@@ -320,7 +320,8 @@ def tube_rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_
         "rigid" if sol.ok else "unknown", dof if sol.ok else -1, (),
         f"judged from the closed deployed tube (residual {dt.residual:.1e}): {dof} first-order freedom(s) of the "
         f"fold angles with free end rings ({finite}; they distort the end rings"
-        f"{' and change the tube height' if shortens else ', the tube height stays'} at first order); "
+        f"{' and change the tube height' if shortens else '; the tube height is stationary'} at first order, "
+        "tube_slack with free ends tests finite shortening); "
         f"with both end rings held as rigid polygons {ends}",
         _PROBE_STEP if sol.ok else 0.0,
     )  # fmt: skip
