@@ -183,7 +183,17 @@ def study(name: str, label: str, params: dict[str, Any], img_dir: Path) -> dict[
         row["size"] = f"{cp.n_panels} panels, {int(cp.folding.sum())} folding creases, {len(cp.seams)} seams"
         v = rigid_foldability(cp)
         row.update(verdict=f"{v.kind} (dof {v.dof})", reach="not modelled (closed tube)", shape="tube", picture="")
-        row.update(slack="not modelled yet (needs the closed deployed tube as start)", note=v.reason)
+        try:
+            from thickpanel.tube_slack import tube_slack
+            from thickpanel.tubes import deployed_tube
+
+            st = deployed_tube(cp).state
+            h0 = float(np.ptp(np.vstack([st.panel_vertices_3d(p) for p in range(cp.n_panels)])[:, 2]))
+            ts = tube_slack(cp, height_mm=0.9 * h0, n_states=3, ends="rigid")
+            slack = f"rigid end rings, shortened to 90 % height: largest hinge play {ts.slack.max_play_mm:.3g} mm"
+        except (ThickpanelError, ImportError) as exc:
+            slack = f"not judged: {exc}"[:120]
+        row.update(slack=slack, note=v.reason)
         return row
     row["size"] = f"{cp.n_panels} panels, {int(cp.folding.sum())} folding creases"
     t0 = time.perf_counter()
