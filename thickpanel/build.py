@@ -366,14 +366,12 @@ def _clearance(run: _Run) -> None:
 
 def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
     """Cut the fold path before the first contact at ``tc`` and sweep the shorter path again."""
-    from .poses import FoldPath
-
     kept = tuple(s for s in res.path.states if s.t < tc)
     if len(kept) < 2:
         res.check("fold stops at first contact", "fail", f"first contact at t = {tc:.3f}, before the first "
                   "sampled state off flat")
         return rep
-    res.path = FoldPath(kept, stop_reason="contact", driver=res.path.driver)
+    res.path = res.path.with_states(kept, stop_reason="contact")  # keeps the exact-state hook
     reach = float(np.abs(kept[-1].angles).max())
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
