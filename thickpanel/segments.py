@@ -27,8 +27,8 @@ from scipy.sparse.csgraph import connected_components
 from scipy.spatial import cKDTree
 
 from .errors import PatternError
-from .limits import MAX_COORDINATE_MM
 from .geometry2d import point_segment_distance, segment_candidate_pairs, segment_pair_relations
+from .limits import MAX_COORDINATE_MM
 from .pattern import KINDS, CreasePattern
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray, IntArray

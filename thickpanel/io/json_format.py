@@ -115,7 +115,9 @@ def _angle_list(val: Any, key: str, source: str, n: int) -> np.ndarray:
         if x is None:
             continue
         if isinstance(x, bool) or not isinstance(x, (int, float)) or not -180.0 <= x <= 180.0:
-            raise PatternError(f"{key}[{q}]{_where(source)} must be a number of degrees in -180..180 or null; got {x!r}")
+            raise PatternError(
+                f"{key}[{q}]{_where(source)} must be a number of degrees in -180..180 or null; got {x!r}"
+            )
         out[q] = math.radians(x)
     return out
 
