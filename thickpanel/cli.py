@@ -137,6 +137,13 @@ def _new(args: argparse.Namespace) -> int:
         raise _InputError(f"--scenario {args.scenario!r} is not a bundled scenario{suggest(args.scenario, names)} "
                           f"(available: {', '.join(names)})")
     target = Path(args.name)
+    stem = target.stem if target.suffix == ".toml" else target.name
+    from .limits import name_problem
+
+    problem = name_problem(stem)
+    if problem:
+        raise _InputError(f"new {args.name!r}: the file name {stem!r} is also the design name and cannot be "
+                          f"used: {problem}")
     if target.suffix != ".toml":
         target = target.with_name(target.name + ".toml")
     if target.exists() and not args.force:
@@ -145,7 +152,7 @@ def _new(args: argparse.Namespace) -> int:
     lines = text.splitlines()
     for i, line in enumerate(lines):  # the design is named after the file
         if line.startswith("name = "):
-            lines[i] = f'name = "{target.stem}"'
+            lines[i] = f"name = {json.dumps(target.stem, ensure_ascii=True)}"  # JSON escapes are valid TOML
             break
     import tomllib
 
