@@ -36,6 +36,8 @@ def _miura(**edits: str) -> str:
         ({'name = "miura-reference"': 'name = "a\\u0000b"'}, r"name = .* control characters"),
         ({'name = "miura-reference"': 'name = ".."'}, r"name = '\.\.' cannot name"),
         ({'name = "miura-reference"': 'name = "' + "x" * 300 + '"'}, r"300 characters"),
+        ({'family = "miura"': 'ptatern = "miura"'}, r"unknown key \[layout\] ptatern; did you mean 'pattern'"),
+        ({'family = "miura"': 'family_ = "miura"'}, r"unknown key \[layout\] family_; did you mean 'family'"),
     ],
 )
 def test_bad_values_refused_at_load(edits: dict[str, str], match: str) -> None:
@@ -48,4 +50,21 @@ def test_deep_nesting_refused(depth: int) -> None:
     text = _miura().replace(
         "[layout]", "deep = " + "[" * depth + "]" * depth + "\n\n[layout]", 1)
     with pytest.raises(DesignFileError, match="nest"):
+        loads_design(text)
+
+
+@pytest.mark.parametrize(
+    "layout, count",
+    [
+        ('family = "accordion"\nwidth = 100.0\npanel_width = 10.0\nn = 100000', "100,000"),
+        ('family = "kresling"\nsides = 720\nstories = 10000', "14,400,000"),
+        ('family = "spiral-rings"\narms = 720\nrings = 500', "720,001"),
+    ],
+)
+def test_sizes_beyond_the_panel_limit_refused_at_once(layout: str, count: str) -> None:
+    text = _miura()
+    start = text.index("[layout]")
+    end = text.index("[panels]")
+    text = text[:start] + "[layout]\n" + layout + "\n\n" + text[end:]
+    with pytest.raises(DesignFileError, match=f"about {count} panels; the limit is 50,000"):
         loads_design(text)

@@ -186,10 +186,11 @@ class Design:
                 else:
                     cp = io.read_pattern(lay.pattern)
             else:
-                from .layouts import get_layout
+                from .layouts import check_layout_size, get_layout
 
                 fn = get_layout(str(lay.family))
                 params = dict(lay.params)
+                check_layout_size(str(lay.family), params)
                 try:
                     if "name" in inspect.signature(fn).parameters and "name" not in params:
                         params["name"] = self.name
@@ -416,8 +417,15 @@ class _Validator:
         pat = self.value(_key("layout", "pattern"), t)
         layers = self.value(_key("layout", "dxf_layers"), t)
         if (fam is None) == (pat is None):
+            hint = ""
+            if fam is None:
+                for k in t:
+                    near = suggest(k, ("family", "pattern"))
+                    if near:
+                        hint = f"; unknown key [layout] {k}{near}"
+                        break
             raise self.fail("[layout] needs exactly one of 'family' (a layout name) or 'pattern' (a file)"
-                            + (f"; got both family = {fam!r} and pattern = {pat!r}" if fam else ""))
+                            + (f"; got both family = {fam!r} and pattern = {pat!r}" if fam else hint))
         if pat is not None:
             self.unknown(t, "layout")
             path = (self.base / pat).resolve()
@@ -469,6 +477,12 @@ class _Validator:
         problems = option_problems(fn, params, "[layout] ")
         if problems:
             raise self.fail(problems[0])
+        from .layouts import check_layout_size
+
+        try:
+            check_layout_size(fam, params)
+        except ThickpanelError as exc:
+            raise self.fail(f"[layout] {exc}") from None
 
     def panels(self) -> PanelsSpec:
         if "panels" not in self.raw:
