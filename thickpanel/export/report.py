@@ -422,15 +422,8 @@ def render_report(res: Any) -> str:
 
 def write_report(res: Any, path: str | os.PathLike[str]) -> Path:
     """Write the report of a build result to ``path`` (temporary file, then rename); return the path."""
-    from ..errors import ExportError
+    from .writer import write_atomic
 
     out = Path(path)
     text = render_report(res).encode("utf-8")
-    try:
-        out.parent.mkdir(parents=True, exist_ok=True)
-        tmp = out.with_name(out.name + ".tmp")
-        tmp.write_bytes(text)
-        tmp.replace(out)
-    except OSError as exc:
-        raise ExportError(f"cannot write report {out}: {exc}") from None
-    return out
+    return write_atomic(out, text)  # temp file removed on any failure (full disk included)
