@@ -88,6 +88,10 @@ def _parser() -> argparse.ArgumentParser:
     b.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
     b.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
     b.add_argument("--formats", help="comma-separated export formats (default: [exports] formats)")
+    for sp in (f, b):
+        sp.add_argument("--reproducible", action="store_true",
+                        help="same bytes for the same input: pin file time stamps to SOURCE_DATE_EPOCH "
+                        "(0 when not set) and leave run times out of the report")
     r = sub.add_parser("report", parents=[common], help="write the HTML report only")
     r.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
     r.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
@@ -189,6 +193,10 @@ def _run(args: argparse.Namespace) -> int:
     from . import build
     from .design import load_design
 
+    if getattr(args, "reproducible", False):
+        import os
+
+        os.environ.setdefault("SOURCE_DATE_EPOCH", "0")
     design = load_design(args.file)
     prog = TerminalProgress(sys.stderr, enabled=not args.quiet)
     formats = tuple(x.strip() for x in args.formats.split(",") if x.strip()) if getattr(args, "formats", None) \

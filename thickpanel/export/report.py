@@ -19,6 +19,8 @@ from typing import Any
 
 import numpy as np
 
+from ..reproducible import source_date_epoch
+
 __all__ = ["write_report", "render_report", "fold_strip_png", "envelope_png", "crease_png", "SAFETY"]
 
 SAFETY = (
@@ -340,6 +342,7 @@ def render_report(res: Any) -> str:
     s = res.summary() if hasattr(res, "summary") else dict(res)
     m = s["metrics"]
     verdict = "PASS" if s["ok"] else "FAIL"
+    pinned = source_date_epoch() is not None  # reproducible: no run times in the file
     parts = [
         "<!DOCTYPE html>",
         '<html lang="en"><head><meta charset="utf-8">',
@@ -412,7 +415,8 @@ def render_report(res: Any) -> str:
               "<h2>Hinges</h2>", _hinge_section(res),
               "<h2>Stages</h2>",
               _table(["stage", "status", "seconds", "note"],
-                     [[st["stage"], st["status"], float(st.get("seconds", 0.0)), st["note"]] for st in s["stages"]],
+                     [[st["stage"], st["status"], "" if pinned else float(st.get("seconds", 0.0)), st["note"]]
+                      for st in s["stages"]],
                      num=(2,)),
               "<h2>Safety cautions</h2>",
               '<div class="caution">' + "".join(f"<p>{_e(x)}</p>" for x in SAFETY) + "</div>",
