@@ -230,6 +230,7 @@ def main(argv: list[str] | None = None) -> int:
     from .errors import DesignFileError, ExportError, PatternError, ThickpanelError
 
     def fail(code: int, msg: str) -> int:
+        msg = msg.encode("utf-8", "backslashreplace").decode("utf-8")  # file names that are not UTF-8
         if args.debug:
             traceback.print_exc()
         sys.stderr.write(f"thickpanel: error: {msg}\n")
