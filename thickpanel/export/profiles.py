@@ -7,18 +7,15 @@ Layers: ``OUTLINE`` (closed polyline of the blank, notches included), ``HOLES`` 
 
 from __future__ import annotations
 
-import io
-import re
-
 import ezdxf
 import numpy as np
 
 from ..solids import Part
+from .dxf_doc import dxf_document_bytes, new_dxf_document
 
 __all__ = ["LAYERS", "profile_dxf_bytes"]
 
 LAYERS = ("OUTLINE", "HOLES", "BEVEL", "BEVEL-BOTTOM")
-_STAMP = re.compile(r"(\d+\.\d+\.\d+\w*) @ \d{4}-\d\d-\d\dT[\d:.]+[+-]\d\d:\d\d")
 
 
 def profile_dxf_bytes(part: Part) -> bytes | None:
@@ -26,7 +23,7 @@ def profile_dxf_bytes(part: Part) -> bytes | None:
     if part.outline is None:
         return None
     shift = part.flat_location[:2, 3]
-    doc = ezdxf.new("R2010", setup=False)
+    doc = new_dxf_document()  # ezdxf.new() orders objects by the hash seed
     doc.units = ezdxf.units.MM
     doc.header["$MEASUREMENT"] = 1
     for layer in LAYERS:
@@ -39,13 +36,4 @@ def profile_dxf_bytes(part: Part) -> bytes | None:
     for layer, seg in part.bevels:
         a, b = (seg + shift).tolist()
         msp.add_line(tuple(a), tuple(b), dxfattribs={"layer": layer})
-    buf = io.StringIO()
-    old = ezdxf.options.write_fixed_meta_data_for_testing
-    ezdxf.options.write_fixed_meta_data_for_testing = True  # no time stamps or random GUIDs
-    try:
-        doc.write(buf)
-    finally:
-        ezdxf.options.write_fixed_meta_data_for_testing = old
-    # ezdxf stamps its version with the write time; fix it so equal input gives equal bytes
-    text = _STAMP.sub(r"\1 @ 2000-01-01T00:00:00+00:00", buf.getvalue())
-    return text.encode("utf-8")
+    return dxf_document_bytes(doc)
