@@ -498,7 +498,7 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
                 run.progress("exports", i, len(states))
             state = res.path.at(float(t)) if res.path is not None else None
             sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
-            paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance)
+            paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance, path=res.path)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
         rec["note"] = f"{n} files in {res.out_dir}{note}"

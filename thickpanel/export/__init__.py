@@ -9,7 +9,9 @@ Formats (:func:`available_formats`):
 - ``3mf``: build plate of the flat array, one object per part (``plate.3mf``);
 - ``dxf``: cut profiles per part (``dxf/P017.dxf``);
 - ``bom``: ``bom.csv`` and ``bom.json``;
-- ``metrics``: ``metrics.json``.
+- ``metrics``: ``metrics.json``;
+- ``gltf``: ``assembly.glb``, glTF 2.0 binary in metres, one node per part, the fold path as an
+  animation (see :mod:`thickpanel.export.gltf`).
 
 Every format function returns ``{relative name: bytes}``; :func:`export_parts` computes them all
 first and only then writes, each file through a temp file and a rename, removing what it wrote if
@@ -52,6 +54,8 @@ class ExportOptions:
         ``AP214`` or ``AP242``.
     name : str
         Name of the assembly (STEP top label, 3MF title).
+    path : FoldPath or None
+        Fold path whose sampled states the glTF animation shows (None: no animation).
     """
 
     state: Any = None
@@ -60,6 +64,7 @@ class ExportOptions:
     stl_angular_deg: float = 28.6
     step_schema: str = "AP214"
     name: str = "array"
+    path: Any = None
 
 
 FormatFn = Callable[["PartSet", ExportOptions], dict[str, bytes]]
@@ -143,6 +148,12 @@ def _metrics(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
     return {"metrics.json": metrics_json_bytes(ps, _state(ps, opt), opt.clearance)}
 
 
+def _gltf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .gltf import partset_glb
+
+    return {"assembly.glb": partset_glb(ps, _state(ps, opt), opt.path, title=opt.name)}
+
+
 _FORMATS: dict[str, FormatFn] = {
     "step": _step,
     "step-parts": _step_parts,
@@ -151,6 +162,7 @@ _FORMATS: dict[str, FormatFn] = {
     "dxf": _dxf,
     "bom": _bom,
     "metrics": _metrics,
+    "gltf": _gltf,
 }
 
 
@@ -204,6 +216,7 @@ def export_parts(
     stl_angular_deg: float = 28.6,
     step_schema: str = "AP214",
     name: str | None = None,
+    path: Any = None,
 ) -> list[Path]:
     """Write the chosen formats of a part set under ``out_dir``; return the written paths.
 
@@ -224,6 +237,8 @@ def export_parts(
         ``AP214`` (default) or ``AP242``.
     name : str, optional
         Assembly name; defaults to the pattern name or ``array``.
+    path : FoldPath, optional
+        Fold path of the glTF animation.
 
     Returns
     -------
@@ -242,6 +257,6 @@ def export_parts(
     if not os.access(root, os.W_OK | os.X_OK):
         raise ExportError(f"output folder {root} is not writable")
     nm = name or getattr(partset.plan.pattern, "name", "") or "array"
-    opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm)
+    opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm, path)
     files = render(partset, formats, opt)
     return write_all(root, files)

@@ -20,6 +20,7 @@ from typing import Any
 import numpy as np
 
 from ..reproducible import source_date_epoch
+from .report_view import fold_sequence_section, view_section
 
 __all__ = ["write_report", "render_report", "fold_strip_png", "envelope_png", "crease_png", "SAFETY"]
 
@@ -369,7 +370,8 @@ def render_report(res: Any) -> str:
     parts += ["<h2>Fold sequence</h2>",
               f'<p class="note">Renders at fold fractions t = 0 (deployed) to 1 (stowed), from the '
               f'{_e(m.get("envelope_from", "fold path"))}.</p>',
-              _img(fold_strip_png(res), "fold-state renders"),
+              fold_sequence_section(res),
+              view_section(res),
               "<h2>Clearance over the fold</h2>"]
     rep = getattr(res, "clearance", None)
     if rep is not None:
