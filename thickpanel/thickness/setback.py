@@ -83,6 +83,23 @@ def section_overlap(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     return best
 
 
+def _overlap_one(a: list[list[float]], b: list[tuple[float, float]]) -> float:
+    """:func:`section_overlap` of one pair of polygons given as lists of (x, y), mm."""
+    best = math.inf
+    for poly in (a, b):
+        k = len(poly)
+        for i in range(k):
+            ex, ey = poly[(i + 1) % k][0] - poly[i][0], poly[(i + 1) % k][1] - poly[i][1]
+            nx, ny = ey, -ex
+            ln = math.sqrt(nx * nx + ny * ny)
+            ln = ln if ln > 0 else 1.0
+            nx, ny = nx / ln, ny / ln
+            pa = [nx * x + ny * y for x, y in a]
+            pb = [nx * x + ny * y for x, y in b]
+            best = min(best, min(max(pa), max(pb)) - max(min(pa), min(pb)))
+    return best
+
+
 def hinge_section_overlap(
     setback: tuple[float, float],
     z_left: tuple[float, float],
@@ -118,6 +135,10 @@ def hinge_section_overlap(
         pairs.append((_rect(0.0, sl, min(a0, 0.0), max(a1, 0.0)), right[0]))
     if sr > 0:
         pairs.append((left[0], _rect(-sr, 0.0, min(b0, 0.0), max(b1, 0.0))))
+    if n == 1:  # one angle (the Brent refinement): plain floats, same arithmetic, no array overhead
+        cs, sn = float(c[0]), float(s[0])
+        return np.array([max(_overlap_one(pa.tolist(), [(cs * x + sn * y, -sn * x + cs * y) for x, y in pb.tolist()])
+                             for pa, pb in pairs)])
     for pa, pb in pairs:
         moved = np.einsum("nij,kj->nki", rot, pb)
         worst = np.maximum(worst, section_overlap(np.broadcast_to(pa, (n, 4, 2)), moved))
