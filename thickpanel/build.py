@@ -271,7 +271,8 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         res.check("thickness method", "n/a", why or why2)
         return
     with run.stage("method") as rec:
-        advice = list(advise(cp, target, thickness=thickness, path=res.path))
+        built: dict[str, Any] = {}  # plans advice built with default options, reused below
+        advice = list(advise(cp, target, thickness=thickness, path=res.path, plans=built))
         res.advice = advice
         names = [a.method for a in advice]
         for a in advice:
@@ -306,7 +307,8 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         if impl is not None:
             _check_options(impl, opts, f"[method] options (method {name!r})", fixed=fixed)
         try:
-            plan = make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
+            plan = built[name] if not opts and name in built else \
+                make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
         except TypeError as exc:
             raise DesignFileError(f"[method] options for {name!r}: {exc}") from exc
         except ThickpanelError as exc:
