@@ -66,14 +66,14 @@ def read_step(path):
 
 
 def test_registry_names():
-    assert available_formats() == ["3mf", "bom", "dxf", "metrics", "step", "step-parts", "stl"]
+    assert available_formats() == ["3mf", "bom", "dxf", "gltf", "metrics", "step", "step-parts", "stl"]
 
 
 def test_written_names_are_deterministic(knuckle_out):
     out, paths = knuckle_out
     rel = sorted(str(p.relative_to(out)) for p in paths)
     assert rel == sorted([
-        "assembly.step", "assembly.stl", "bom.csv", "bom.json", "metrics.json", "plate.3mf",
+        "assembly.glb", "assembly.step", "assembly.stl", "bom.csv", "bom.json", "metrics.json", "plate.3mf",
         "dxf/P000.dxf", "dxf/P001.dxf", "step/P000.step", "step/P001.step", "step/PIN-C006.step",
         "stl/P000.stl", "stl/P001.stl", "stl/PIN-C006.stl",
     ])

@@ -66,13 +66,13 @@ def test_upper_case_default_layers(tmp_path):
     assert read_dxf(p).kinds.count("mountain") == 1
 
 
-def test_arc_segment_refused(tmp_path):
+def test_arc_segment_on_fold_layer_refused(tmp_path):
     doc = ezdxf.new()
     pts = [(0, 0, 0.5), (10, 0, 0), (10, 10, 0)]
-    doc.modelspace().add_lwpolyline(pts, format="xyb", dxfattribs={"layer": "border"})
+    doc.modelspace().add_lwpolyline(pts, format="xyb", dxfattribs={"layer": "valley"})
     p = tmp_path / "arc.dxf"
     doc.saveas(p)
-    with pytest.raises(PatternError, match="arc segment"):
+    with pytest.raises(PatternError, match=r"1 LWPOLYLINE on layer 'valley'.*straight"):
         read_dxf(p)
 
 

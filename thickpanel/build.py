@@ -37,6 +37,7 @@ from .build_result import (
 from .design import Design, suggest
 from .envelope import diameter, packing_ratio, principal_frame
 from .errors import DesignFileError, HingeError, ThickpanelError
+from .outputs import prepare_out_dir, remove_outputs
 
 log = logging.getLogger("thickpanel")
 
@@ -76,7 +77,21 @@ def run_pipeline(
     run = _Run(res, progress)
     want = set(stages)
     res.out_dir = Path(out_dir) if out_dir else default_out_dir(design)
+    writes = command != "check" and bool(want & {"exports", "drawings", "report"})
+    created = prepare_out_dir(res.out_dir) if writes else []
+    try:
+        _stages(run, want, command, at, formats)
+    except BaseException:
+        if writes:  # all or nothing: remove what this run wrote, then the folders it made
+            remove_outputs(res.outputs, created)
+            res.outputs = []
+        raise
+    return res
 
+
+def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: tuple[str, ...] | None) -> None:
+    res = run.res
+    design = res.design
     # -- pattern (input errors propagate as DesignFileError)
     with run.stage("pattern") as rec:
         cp = design.make_pattern()
@@ -115,7 +130,7 @@ def run_pipeline(
             run.skip("drawings", "not available", why)
         else:
             with run.stage("drawings") as rec:
-                paths = fn(cp, res.out_dir, design.name)
+                paths = fn(res.pattern, res.out_dir, design.name)
                 res.outputs += [Path(p) for p in paths]
                 rec["note"] = f"{len(paths)} files"
     if "report" in want and (design.exports.report or command == "report"):
@@ -124,10 +139,9 @@ def run_pipeline(
             run.skip("report", "not available", why)
         else:
             with run.stage("report") as rec:
-                res.report = fn(res, res.out_dir / f"{design.name}-report.html")
+                res.report = fn(res, Path(str(res.out_dir)) / f"{design.name}-report.html")
                 res.outputs.append(res.report)
                 rec["note"] = str(res.report)
-    return res
 
 
 def _foldability(run: _Run, cp: Any) -> None:
@@ -366,14 +380,12 @@ def _clearance(run: _Run) -> None:
 
 def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
     """Cut the fold path before the first contact at ``tc`` and sweep the shorter path again."""
-    from .poses import FoldPath
-
     kept = tuple(s for s in res.path.states if s.t < tc)
     if len(kept) < 2:
         res.check("fold stops at first contact", "fail", f"first contact at t = {tc:.3f}, before the first "
                   "sampled state off flat")
         return rep
-    res.path = FoldPath(kept, stop_reason="contact", driver=res.path.driver)
+    res.path = res.path.with_states(kept, stop_reason="contact")  # keeps the exact-state hook
     reach = float(np.abs(kept[-1].angles).max())
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
@@ -505,7 +517,7 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
             state = res.path.at(float(t)) if res.path is not None else None
             sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
             paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance,
-                       scope="state", **shop)
+                       path=res.path, scope="state", **shop)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
         rec["note"] = f"{n} files in {res.out_dir}{note}"

@@ -90,6 +90,10 @@ def _parser() -> argparse.ArgumentParser:
     b.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
     b.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
     b.add_argument("--formats", help="comma-separated export formats (default: [exports] formats)")
+    for sp in (f, b):
+        sp.add_argument("--reproducible", action="store_true",
+                        help="same bytes for the same input: pin file time stamps to SOURCE_DATE_EPOCH "
+                        "(0 when not set) and leave run times out of the report")
     r = sub.add_parser("report", parents=[common], help="write the HTML report only")
     r.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
     r.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
@@ -139,6 +143,13 @@ def _new(args: argparse.Namespace) -> int:
         raise _InputError(f"--scenario {args.scenario!r} is not a bundled scenario{suggest(args.scenario, names)} "
                           f"(available: {', '.join(names)})")
     target = Path(args.name)
+    stem = target.stem if target.suffix == ".toml" else target.name
+    from .limits import name_problem
+
+    problem = name_problem(stem)
+    if problem:
+        raise _InputError(f"new {args.name!r}: the file name {stem!r} is also the design name and cannot be "
+                          f"used: {problem}")
     if target.suffix != ".toml":
         target = target.with_name(target.name + ".toml")
     if target.exists() and not args.force:
@@ -147,7 +158,7 @@ def _new(args: argparse.Namespace) -> int:
     lines = text.splitlines()
     for i, line in enumerate(lines):  # the design is named after the file
         if line.startswith("name = "):
-            lines[i] = f'name = "{target.stem}"'
+            lines[i] = f"name = {json.dumps(target.stem, ensure_ascii=True)}"  # JSON escapes are valid TOML
             break
     import tomllib
 
@@ -184,6 +195,10 @@ def _run(args: argparse.Namespace) -> int:
     from . import build
     from .design import load_design
 
+    if getattr(args, "reproducible", False):
+        import os
+
+        os.environ.setdefault("SOURCE_DATE_EPOCH", "0")
     design = load_design(args.file)
     prog = TerminalProgress(sys.stderr, enabled=not args.quiet)
     formats = tuple(x.strip() for x in args.formats.split(",") if x.strip()) if getattr(args, "formats", None) \
@@ -221,6 +236,7 @@ def main(argv: list[str] | None = None) -> int:
     from .errors import DesignFileError, ExportError, PatternError, ThickpanelError
 
     def fail(code: int, msg: str) -> int:
+        msg = msg.encode("utf-8", "backslashreplace").decode("utf-8")  # file names that are not UTF-8
         if args.debug:
             traceback.print_exc()
         sys.stderr.write(f"thickpanel: error: {msg}\n")

@@ -30,6 +30,8 @@ from types import MappingProxyType
 from typing import TYPE_CHECKING, Any
 
 from .errors import DesignFileError, ThickpanelError
+from .limits import MAX_NESTING, name_problem, nesting_depth
+from .option_checks import option_problems
 
 if TYPE_CHECKING:
     from .pattern import CreasePattern
@@ -188,10 +190,11 @@ class Design:
                 else:
                     cp = io.read_pattern(lay.pattern)
             else:
-                from .layouts import get_layout
+                from .layouts import check_layout_size, get_layout
 
                 fn = get_layout(str(lay.family))
                 params = dict(lay.params)
+                check_layout_size(str(lay.family), params)
                 try:
                     if "name" in inspect.signature(fn).parameters and "name" not in params:
                         params["name"] = self.name
@@ -268,6 +271,10 @@ def load_design(path: str | Path, *, check_layout: bool = True) -> Design:
     """
     p = Path(path)
     try:
+        str(p).encode("utf-8")
+    except UnicodeEncodeError:
+        raise DesignFileError(f"design file path {str(p)!r} is not valid UTF-8; rename the file or folder") from None
+    try:
         text = p.read_text(encoding="utf-8")
     except FileNotFoundError:
         raise DesignFileError(f"design file {str(p)!r} not found") from None
@@ -283,6 +290,12 @@ def loads_design(text: str, *, source: Path | None = None, check_layout: bool = 
         raw = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise DesignFileError(f"{where}TOML syntax error: {exc}") from None
+    except RecursionError:
+        raise DesignFileError(
+            f"{where}arrays or tables nest too deeply to read; at most {MAX_NESTING} levels"
+        ) from None
+    if nesting_depth(raw) > MAX_NESTING:
+        raise DesignFileError(f"{where}arrays or tables nest more than {MAX_NESTING} levels deep")
     return _Validator(raw, source, where, check_layout).design()
 
 
@@ -380,8 +393,9 @@ class _Validator:
         name = self.value(_key("", "name"), self.raw)
         if name is None:
             name = self.source.stem if self.source else "design"
-        if not name.strip() or any(ch in name for ch in '/\\:*?"<>|'):
-            raise self.fail(f"name = {name!r} must be non-empty and usable as a folder name (no / \\ : * ? \" < > |)")
+        problem = name_problem(name)
+        if problem:
+            raise self.fail(f"name = {name!r} cannot name the export folder and files: {problem}")
         layout = self.layout()
         panels = self.panels()
         hinge = self.hinge(panels)
@@ -407,8 +421,15 @@ class _Validator:
         pat = self.value(_key("layout", "pattern"), t)
         layers = self.value(_key("layout", "dxf_layers"), t)
         if (fam is None) == (pat is None):
+            hint = ""
+            if fam is None:
+                for k in t:
+                    near = suggest(k, ("family", "pattern"))
+                    if near:
+                        hint = f"; unknown key [layout] {k}{near}"
+                        break
             raise self.fail("[layout] needs exactly one of 'family' (a layout name) or 'pattern' (a file)"
-                            + (f"; got both family = {fam!r} and pattern = {pat!r}" if fam else ""))
+                            + (f"; got both family = {fam!r} and pattern = {pat!r}" if fam else hint))
         if pat is not None:
             self.unknown(t, "layout")
             path = (self.base / pat).resolve()
@@ -457,6 +478,15 @@ class _Validator:
             if p.default is inspect.Parameter.empty and p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY):
                 if n not in params:
                     raise self.fail(f"[layout] {n} is missing: family {fam!r} needs key {n!r}")
+        problems = option_problems(fn, params, "[layout] ")
+        if problems:
+            raise self.fail(problems[0])
+        from .layouts import check_layout_size
+
+        try:
+            check_layout_size(fam, params)
+        except ThickpanelError as exc:
+            raise self.fail(f"[layout] {exc}") from None
 
     def panels(self) -> PanelsSpec:
         if "panels" not in self.raw:
@@ -507,6 +537,14 @@ class _Validator:
         self.unknown(t, "method")
         name = self.value(_key("method", "name"), t)
         opts = self.value(_key("method", "options"), t)
+        if self.check_layout and name != "auto":
+            from .thickness import method_function
+
+            fn = method_function(name)
+            if fn is not None:
+                problems = option_problems(fn, opts, "[method] options.")
+                if problems:
+                    raise self.fail(problems[0])
         return MethodSpec(name, MappingProxyType(dict(opts)))
 
     def hinge(self, panels: PanelsSpec) -> HingeSpec:
@@ -538,10 +576,16 @@ class _Validator:
                 if k not in known:
                     raise self.fail(f"unknown key [hinge] {k} for style {style!r}{suggest(k, known)} "
                                     f"(its options: {', '.join(known) or 'none'})")
+        factory = plain if isinstance(plain, type) else type(plain)
+        problems = option_problems(factory, opts, "[hinge] ")
+        if problems:
+            raise self.fail(problems[0])
         try:
             hinges.get_hinge_style(style, **opts)
         except ThickpanelError as exc:
             raise self.fail(f"[hinge] {exc}") from None
+        except (TypeError, ValueError, AttributeError) as exc:  # a value the style's own checks cannot take
+            raise self.fail(f"[hinge] options of style {style!r} are not usable: {exc}") from None
 
     def fold(self) -> FoldSpec:
         t = self.section("fold")

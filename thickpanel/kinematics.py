@@ -395,7 +395,7 @@ def fold_path(
     states = [model.state(tr.x, 0.0)]
     stop = "target"
     if stop_when is not None and stop_when(states[0]):
-        return FoldPath((states[0],), "contact", drv_name, _meta(tr, target, 0.0))
+        return FoldPath((states[0],), "contact", drv_name, _meta(tr, target, 0.0), refine=_refine)
     h = min(levels[1], _FIRST_STEP) if tr.closed is None else levels[1]
     starts = _start_directions(model)[1:] if tr.closed is None else []
     for i in range(1, n_states):
@@ -426,7 +426,16 @@ def fold_path(
             f"{', '.join(where[:6]) or 'unknown places'}. Use joint_slack() to size the hinge play a real "
             "array would need"
         )
-    return FoldPath(tuple(states), stop, drv_name, _meta(tr, target, tr.level))
+    return FoldPath(tuple(states), stop, drv_name, _meta(tr, target, tr.level), refine=_refine)
+
+
+def _refine(path: FoldPath, t: float) -> FoldState:
+    """The ``FoldPath.refine`` hook of solver-made paths: exact state at ``t`` (see solve_state)."""
+    if "target" not in path.meta:  # solver data dropped by hand: interpolate rather than recurse
+        from dataclasses import replace
+
+        return replace(path, refine=None, meta={}).at(t)
+    return solve_state(path.states[0].pattern, t, path=path)
 
 
 def _meta(tr: _Tracker, target: float, reached: float) -> dict[str, Any]:

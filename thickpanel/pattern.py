@@ -136,7 +136,12 @@ class CreasePattern:
         if target_angles is None:
             ta = np.full(len(c), np.nan)
         else:
-            ta = np.asarray(target_angles, dtype=np.float64).reshape(-1)
+            try:
+                ta = np.asarray(target_angles, dtype=np.float64).reshape(-1)
+            except (TypeError, ValueError) as exc:
+                raise PatternError(
+                    f"target_angles must be numbers in rad (NaN or None for no target), one per crease: {exc}"
+                ) from None
             if len(ta) != len(c):
                 raise PatternError(f"target_angles has {len(ta)} entries for {len(c)} creases")
         self._vertices: FloatArray = _readonly(v)

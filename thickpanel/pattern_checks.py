@@ -7,6 +7,7 @@ when they fail, the topological checks are skipped because the half-edge structu
 
 from __future__ import annotations
 
+import math
 from collections import Counter
 from typing import TYPE_CHECKING
 
@@ -16,6 +17,7 @@ from scipy.sparse.csgraph import connected_components
 from scipy.spatial import cKDTree
 
 from .geometry2d import segment_candidate_pairs, segment_pair_relations
+from .limits import MAX_COORDINATE_MM
 from .pattern import KINDS, Finding, cid, vid
 
 if TYPE_CHECKING:
@@ -45,6 +47,18 @@ def structural_findings(cp: CreasePattern) -> list[Finding]:
                 (vid(i),),
                 None,
                 f"vertex {vid(i)} has a non-finite coordinate {tuple(float(x) for x in v[i])}",
+            )
+        )
+    with np.errstate(invalid="ignore"):
+        far_v = np.nonzero(np.any(np.abs(v) > MAX_COORDINATE_MM, axis=1) & np.all(np.isfinite(v), axis=1))[0]
+    for i in far_v[:20]:
+        out.append(
+            Finding(
+                "coordinate_range",
+                (vid(i),),
+                None,
+                f"vertex {vid(i)} at {tuple(float(x) for x in v[i])} mm is beyond the coordinate limit of "
+                f"+-{MAX_COORDINATE_MM:g} mm",
             )
         )
     n = len(v)
@@ -315,6 +329,17 @@ def _topology_findings(cp: CreasePattern) -> list[Finding]:
                     (cid(s.a),),
                     None,
                     f"seam at {cid(s.a)} has kind {s.kind!r}; use mountain or valley",
+                )
+            )
+        sta = float(s.target_angle)
+        if not math.isnan(sta) and not abs(sta) <= np.pi + tol.angle:
+            out.append(
+                Finding(
+                    "seam",
+                    (cid(s.a), cid(s.b)),
+                    None,
+                    f"seam {cid(s.a)}/{cid(s.b)} has target angle {sta!r} rad; seams take -pi..pi rad "
+                    "(-180..180 deg) or NaN for none",
                 )
             )
         if max(cp_[s.a]) < 0 or max(cp_[s.b]) < 0:

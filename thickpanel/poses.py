@@ -17,7 +17,8 @@ reference surface, or a shifted hinge line given by a thickness method.
 from __future__ import annotations
 
 import weakref
-from dataclasses import dataclass, field
+from collections.abc import Callable
+from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING
 
 import networkx as nx
@@ -389,12 +390,24 @@ class FoldPath:
         Why path following stopped: ``target``, ``lock``, ``contact`` or ``request``.
     driver : str
         What drove the path (``C012`` for a crease, ``t`` for fold fraction).
+    meta : dict
+        Solver data (target, reachable fold ...), informative only.
+    refine : callable, optional
+        ``refine(path, t) -> FoldState``: the exact state between samples. Set by the solver that
+        made the path and kept by :meth:`with_states` and :func:`dataclasses.replace`; without it
+        :meth:`at` interpolates crease angles linearly.
     """
 
     states: tuple[FoldState, ...]
     stop_reason: str = "target"
     driver: str = "t"
     meta: dict = field(default_factory=dict, compare=False)
+    refine: Callable[[FoldPath, float], FoldState] | None = field(default=None, compare=False, repr=False)
+
+    def with_states(self, states: tuple[FoldState, ...], stop_reason: str | None = None) -> FoldPath:
+        """The same path (solver hook and metadata kept) with other sampled states, e.g. cut short."""
+        return replace(self, states=tuple(states), stop_reason=stop_reason or self.stop_reason,
+                       meta=dict(self.meta))
 
     @property
     def fractions(self) -> FloatArray:
@@ -404,8 +417,9 @@ class FoldPath:
     def at(self, t: float) -> FoldState:
         """State at fold fraction ``t`` in [0, 1].
 
-        For paths made by :func:`thickpanel.kinematics.fold_path` the state is solved exactly
-        (closure error below the tolerance) from the nearest sampled state; for hand-made paths
+        For paths carrying a ``refine`` hook (those made by :func:`thickpanel.kinematics.fold_path`)
+        the state is solved exactly (closure error below the tolerance) from the nearest sampled
+        state; for hand-made paths
         the crease angles are interpolated linearly and re-composed into poses.
         """
         if not (0.0 <= t <= 1.0):
@@ -419,7 +433,9 @@ class FoldPath:
         k = int(np.searchsorted(ts, t))
         if ts[k] == t:
             return self.states[k]
-        if self.meta.get("solver") == "kinematics":
+        if self.refine is not None:
+            return self.refine(self, t)
+        if self.meta.get("solver") == "kinematics":  # paths made before the refine hook existed
             from .kinematics import solve_state  # late import: kinematics builds on this module
 
             return solve_state(self.states[0].pattern, t, path=self)

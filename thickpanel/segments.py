@@ -28,6 +28,7 @@ from scipy.spatial import cKDTree
 
 from .errors import PatternError
 from .geometry2d import point_segment_distance, segment_candidate_pairs, segment_pair_relations
+from .limits import MAX_COORDINATE_MM
 from .pattern import KINDS, CreasePattern
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray, IntArray
@@ -162,6 +163,12 @@ def _as_segments(segments: Any) -> FloatArray:
     if len(bad):
         q = int(bad[0])
         raise PatternError(f"segment {q} has a non-finite coordinate {s[q].tolist()}")
+    far = np.nonzero(np.any(np.abs(s.reshape(-1, 4)) > MAX_COORDINATE_MM, axis=1))[0]
+    if len(far):
+        q = int(far[0])
+        raise PatternError(
+            f"segment {q} has a coordinate beyond the limit of +-{MAX_COORDINATE_MM:g} mm: {s[q].tolist()}"
+        )
     return s
 
 

@@ -9,7 +9,9 @@ Formats (:func:`available_formats`):
 - ``3mf``: build plate of the flat array, one object per part (``plate.3mf``);
 - ``dxf``: cut profiles per part (``dxf/P017.dxf``);
 - ``bom``: ``bom.csv`` and ``bom.json``;
-- ``metrics``: ``metrics.json``.
+- ``metrics``: ``metrics.json``;
+- ``gltf``: ``assembly.glb``, glTF 2.0 binary in metres, one node per part, the fold path as an
+  animation (see :mod:`thickpanel.export.gltf`).
 
 Every format function returns ``{relative name: bytes}``; :func:`export_parts` computes them all
 first and only then writes, each file through a temp file and a rename, removing what it wrote if
@@ -52,6 +54,8 @@ class ExportOptions:
         ``AP214`` or ``AP242``.
     name : str
         Name of the assembly (STEP top label, 3MF title).
+    path : FoldPath or None
+        Fold path whose sampled states the glTF animation shows (None: no animation).
     prefix : str
         Prefix of the top-level file names (``<prefix>-assembly-t1.00.step``); empty: the plain
         names (``assembly.step``).
@@ -71,6 +75,7 @@ class ExportOptions:
     stl_angular_deg: float = 28.6
     step_schema: str = "AP214"
     name: str = "array"
+    path: Any = None
     prefix: str = ""
     scope: str = "all"
     state_tag: str = ""
@@ -176,6 +181,12 @@ def _metrics(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
     return {"metrics.json": metrics_json_bytes(ps, _state(ps, opt), opt.clearance)}
 
 
+def _gltf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
+    from .gltf import partset_glb
+
+    return {"assembly.glb": partset_glb(ps, _state(ps, opt), opt.path, title=opt.name)}
+
+
 _FORMATS: dict[str, FormatFn] = {
     "step": _step,
     "step-parts": _step_parts,
@@ -184,6 +195,7 @@ _FORMATS: dict[str, FormatFn] = {
     "dxf": _dxf,
     "bom": _bom,
     "metrics": _metrics,
+    "gltf": _gltf,
 }
 
 
@@ -250,6 +262,7 @@ def export_parts(
     stl_angular_deg: float = 28.6,
     step_schema: str = "AP214",
     name: str | None = None,
+    path: Any = None,
     prefix: str = "",
     scope: str = "all",
     plate_mm: tuple[float, float] = (250.0, 250.0),
@@ -273,6 +286,8 @@ def export_parts(
         ``AP214`` (default) or ``AP242``.
     name : str, optional
         Assembly name; defaults to the pattern name or ``array``.
+    path : FoldPath, optional
+        Fold path of the glTF animation.
     prefix : str
         Design name put in front of the top-level file names (``<prefix>-assembly-t1.00.step``,
         ``<prefix>-bom.csv``, ``<prefix>-plate.3mf``); empty keeps the plain names.
@@ -298,7 +313,7 @@ def export_parts(
     t = getattr(state if state is not None else partset.state, "t", None)
     tag = f"t{float(t):.2f}" if t is not None else "t0.00"
     opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm,
-                        prefix, scope, tag, (float(plate_mm[0]), float(plate_mm[1])))
+                        path, prefix, scope, tag, (float(plate_mm[0]), float(plate_mm[1])))
     files = render(partset, formats, opt)  # before the folder is made: a refusal writes nothing
     try:
         root.mkdir(parents=True, exist_ok=True)

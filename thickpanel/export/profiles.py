@@ -10,8 +10,6 @@ material), ``NOTES`` (each bevel's angle from the face normal and the face it is
 
 from __future__ import annotations
 
-import io
-import re
 from typing import Any
 
 import ezdxf
@@ -23,12 +21,12 @@ from ..errors import ThickpanelError
 from ..geometry2d import polygon_area
 from ..solids import Part
 from ..typing import FloatArray
+from .dxf_doc import dxf_document_bytes, new_dxf_document
 from .shop import blank_outline
 
 __all__ = ["LAYERS", "pin_fits", "profile_dxf_bytes", "fit_text"]
 
 LAYERS = ("OUTLINE", "HOLES", "BEVEL", "BEVEL-BOTTOM", "LABEL", "NOTES")
-_STAMP = re.compile(r"(\d+\.\d+\.\d+\w*) @ \d{4}-\d\d-\d\dT[\d:.]+[+-]\d\d:\d\d")
 
 
 def pin_fits(parts: Any) -> dict[float, str]:
@@ -88,7 +86,7 @@ def profile_dxf_bytes(part: Part, slab: Any = None, fits: dict[float, str] | Non
         return None
     fits = fits or {}
     shift = part.flat_location[:2, 3]
-    doc = ezdxf.new("R2010", setup=False)
+    doc = new_dxf_document()  # ezdxf.new() orders objects by the hash seed
     doc.units = ezdxf.units.MM
     doc.header["$MEASUREMENT"] = 1
     for layer in LAYERS:
@@ -145,13 +143,4 @@ def profile_dxf_bytes(part: Part, slab: Any = None, fits: dict[float, str] | Non
     for i, text in enumerate(notes):
         msp.add_text(text, height=0.5 * size, dxfattribs={
             "layer": "NOTES", "insert": (float(lo[0]), float(lo[1]) - (i + 1.5) * size)})
-    buf = io.StringIO()
-    old = ezdxf.options.write_fixed_meta_data_for_testing
-    ezdxf.options.write_fixed_meta_data_for_testing = True  # no time stamps or random GUIDs
-    try:
-        doc.write(buf)
-    finally:
-        ezdxf.options.write_fixed_meta_data_for_testing = old
-    # ezdxf stamps its version with the write time; fix it so equal input gives equal bytes
-    text = _STAMP.sub(r"\1 @ 2000-01-01T00:00:00+00:00", buf.getvalue())
-    return text.encode("utf-8")
+    return dxf_document_bytes(doc)

@@ -19,6 +19,9 @@ from typing import Any
 
 import numpy as np
 
+from ..reproducible import source_date_epoch
+from .report_view import fold_sequence_section, view_section
+
 __all__ = ["write_report", "render_report", "fold_strip_png", "envelope_png", "crease_png", "SAFETY"]
 
 SAFETY = (
@@ -340,6 +343,7 @@ def render_report(res: Any) -> str:
     s = res.summary() if hasattr(res, "summary") else dict(res)
     m = s["metrics"]
     verdict = "PASS" if s["ok"] else "FAIL"
+    pinned = source_date_epoch() is not None  # reproducible: no run times in the file
     parts = [
         "<!DOCTYPE html>",
         '<html lang="en"><head><meta charset="utf-8">',
@@ -366,7 +370,8 @@ def render_report(res: Any) -> str:
     parts += ["<h2>Fold sequence</h2>",
               f'<p class="note">Renders at fold fractions t = 0 (deployed) to 1 (stowed), from the '
               f'{_e(m.get("envelope_from", "fold path"))}.</p>',
-              _img(fold_strip_png(res), "fold-state renders"),
+              fold_sequence_section(res),
+              view_section(res),
               "<h2>Clearance over the fold</h2>"]
     rep = getattr(res, "clearance", None)
     if rep is not None:
@@ -412,7 +417,8 @@ def render_report(res: Any) -> str:
               "<h2>Hinges</h2>", _hinge_section(res),
               "<h2>Stages</h2>",
               _table(["stage", "status", "seconds", "note"],
-                     [[st["stage"], st["status"], float(st.get("seconds", 0.0)), st["note"]] for st in s["stages"]],
+                     [[st["stage"], st["status"], "" if pinned else float(st.get("seconds", 0.0)), st["note"]]
+                      for st in s["stages"]],
                      num=(2,)),
               "<h2>Safety cautions</h2>",
               '<div class="caution">' + "".join(f"<p>{_e(x)}</p>" for x in SAFETY) + "</div>",
@@ -422,15 +428,8 @@ def render_report(res: Any) -> str:
 
 def write_report(res: Any, path: str | os.PathLike[str]) -> Path:
     """Write the report of a build result to ``path`` (temporary file, then rename); return the path."""
-    from ..errors import ExportError
+    from .writer import write_atomic
 
     out = Path(path)
     text = render_report(res).encode("utf-8")
-    try:
-        out.parent.mkdir(parents=True, exist_ok=True)
-        tmp = out.with_name(out.name + ".tmp")
-        tmp.write_bytes(text)
-        tmp.replace(out)
-    except OSError as exc:
-        raise ExportError(f"cannot write report {out}: {exc}") from None
-    return out
+    return write_atomic(out, text)  # temp file removed on any failure (full disk included)

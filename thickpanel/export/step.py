@@ -30,6 +30,7 @@ from OCP.XCAFDoc import XCAFDoc_DocumentTool
 
 from .. import occ
 from ..errors import ExportError
+from ..reproducible import pin_step_timestamp
 from ..typing import FloatArray
 
 __all__ = ["SCHEMAS", "step_bytes", "part_step_bytes"]
@@ -140,7 +141,7 @@ def step_bytes(
     try:
         if writer.Write(tmp) != IFSelect_RetDone:
             raise ExportError(f"STEP writer failed for {name!r}")
-        return _renumber(Path(tmp).read_bytes())
+        return pin_step_timestamp(_renumber(Path(tmp).read_bytes()))
     finally:
         os.unlink(tmp)
 

@@ -22,6 +22,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import ExportError, PatternError
+from ..limits import MAX_INDEX, MAX_NESTING, coordinate_problem, nesting_depth
 from ..pattern import CreasePattern, Seam
 from ..tolerances import DEFAULT_TOL, Tolerances
 
@@ -88,8 +89,19 @@ def _array(d: dict[str, Any], key: str, source: str, cols: int, kind: str) -> np
         for x in row:
             if isinstance(x, bool) or not isinstance(x, (int, float)):
                 raise PatternError(f"{key}[{q}]{_where(source)} must hold {kind}; got {row!r}")
-            if kind == "integers" and not isinstance(x, int):
-                raise PatternError(f"{key}[{q}]{_where(source)} must hold vertex indices (integers); got {row!r}")
+            if kind == "integers":
+                if not isinstance(x, int):
+                    raise PatternError(
+                        f"{key}[{q}]{_where(source)} must hold vertex indices (integers); got {row!r}"
+                    )
+                if not 0 <= x <= MAX_INDEX:
+                    raise PatternError(
+                        f"{key}[{q}]{_where(source)} holds vertex index {x}; indices run from 0 to at most {MAX_INDEX}"
+                    )
+            else:
+                problem = coordinate_problem(x)
+                if problem:
+                    raise PatternError(f"{key}[{q}]{_where(source)}: coordinate {problem}")
     dtype = np.int64 if kind == "integers" else np.float64
     return np.asarray(val, dtype=dtype).reshape(-1, cols)
 
@@ -102,8 +114,10 @@ def _angle_list(val: Any, key: str, source: str, n: int) -> np.ndarray:
     for q, x in enumerate(val):
         if x is None:
             continue
-        if isinstance(x, bool) or not isinstance(x, (int, float)) or not math.isfinite(x):
-            raise PatternError(f"{key}[{q}]{_where(source)} must be a finite number of degrees or null; got {x!r}")
+        if isinstance(x, bool) or not isinstance(x, (int, float)) or not -180.0 <= x <= 180.0:
+            raise PatternError(
+                f"{key}[{q}]{_where(source)} must be a number of degrees in -180..180 or null; got {x!r}"
+            )
         out[q] = math.radians(x)
     return out
 
@@ -118,7 +132,7 @@ def pattern_from_dict(
     if fmt != FORMAT_NAME:
         raise PatternError(f"key 'format'{_where(source)} is {fmt!r}; expected {FORMAT_NAME!r}")
     ver = d.get("version")
-    if isinstance(ver, bool) or ver not in SUPPORTED_VERSIONS:
+    if not isinstance(ver, int) or isinstance(ver, bool) or ver not in SUPPORTED_VERSIONS:
         raise PatternError(
             f"key 'version'{_where(source)} is {ver!r}; supported versions: {', '.join(map(str, SUPPORTED_VERSIONS))}"
         )
@@ -129,7 +143,7 @@ def pattern_from_dict(
         if key not in d:
             raise PatternError(f"missing key {key!r}{_where(source)}")
     units = d.get("units", "mm")
-    if units not in UNITS_MM:
+    if not isinstance(units, str) or units not in UNITS_MM:
         raise PatternError(f"key 'units'{_where(source)} is {units!r}; allowed: {', '.join(UNITS_MM)}")
     name = d.get("name", "")
     if not isinstance(name, str):
@@ -155,11 +169,20 @@ def pattern_from_dict(
         for key in ("a", "b"):
             if isinstance(s[key], bool) or not isinstance(s[key], int):
                 raise PatternError(f"seams[{q}].{key}{_where(source)} must be a crease index; got {s[key]!r}")
+        for key in ("a", "b"):
+            if not 0 <= s[key] <= MAX_INDEX:
+                raise PatternError(f"seams[{q}].{key}{_where(source)} = {s[key]} is not a crease index")
         t = s.get("target_angle_deg")
-        if t is not None and (isinstance(t, bool) or not isinstance(t, (int, float)) or not math.isfinite(t)):
-            raise PatternError(f"seams[{q}].target_angle_deg{_where(source)} must be a number or null; got {t!r}")
+        if t is not None and (isinstance(t, bool) or not isinstance(t, (int, float)) or not -180.0 <= t <= 180.0):
+            raise PatternError(
+                f"seams[{q}].target_angle_deg{_where(source)} must be a number of degrees in -180..180 or null; "
+                f"got {t!r}"
+            )
+        kind = s.get("kind", "valley")
+        if not isinstance(kind, str):
+            raise PatternError(f"seams[{q}].kind{_where(source)} must be a crease kind (text); got {kind!r}")
         seams.append(
-            Seam(int(s["a"]), int(s["b"]), str(s.get("kind", "valley")), math.radians(t) if t is not None else math.nan)
+            Seam(int(s["a"]), int(s["b"]), kind, math.radians(t) if t is not None else math.nan)
         )
     try:
         return CreasePattern(verts, creases, kinds, ta, seams=seams, name=name, tol=tol, validate=validate)
@@ -184,6 +207,16 @@ def loads_pattern(text: str, *, source: str = "", tol: Tolerances = DEFAULT_TOL)
         raise PatternError(
             f"pattern file{_where(source)} is not valid JSON: {exc.msg} at line {exc.lineno} column {exc.colno}"
         ) from None
+    except RecursionError:
+        raise PatternError(
+            f"pattern file{_where(source)} nests arrays or objects too deeply to read; at most {MAX_NESTING} levels"
+        ) from None
+    except ValueError as exc:  # e.g. an integer literal with more digits than Python converts
+        raise PatternError(f"pattern file{_where(source)} is not a readable pattern: {exc}") from None
+    if nesting_depth(data) > MAX_NESTING:
+        raise PatternError(
+            f"pattern file{_where(source)} nests arrays or objects more than {MAX_NESTING} levels deep"
+        )
     return pattern_from_dict(data, source=source, tol=tol)
 
 

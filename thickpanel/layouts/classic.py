@@ -34,7 +34,7 @@ import numpy as np
 from ..errors import PatternError
 from ..pattern import CreasePattern
 from ..tolerances import DEFAULT_TOL, Tolerances
-from . import register_layout
+from . import register_layout, register_panel_estimate
 
 __all__ = ["miura_ori", "square_twist", "accordion", "SQUARE_TWIST_ASSIGNMENTS"]
 
@@ -287,7 +287,8 @@ def accordion(
     panel_width : float, mm
         Width of every panel in x, > 0.
     n : int
-        Number of panels, 1..100000. The ``n - 1`` fold lines sit at x = k panel_width.
+        Number of panels, 1..100000 (and at most ``thickpanel.limits.MAX_PANELS`` through the
+        registry and design files). The ``n - 1`` fold lines sit at x = k panel_width.
     first : {"valley", "mountain"}
         Kind of the first fold line (x = panel_width); the kinds then alternate.
 
@@ -321,3 +322,5 @@ def accordion(
 register_layout("miura", miura_ori)
 register_layout("square-twist", square_twist)
 register_layout("accordion", accordion)
+register_panel_estimate("miura", lambda *, nx, ny, **_: int(nx) * int(ny))
+register_panel_estimate("accordion", lambda *, n, **_: int(n))

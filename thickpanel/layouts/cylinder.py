@@ -26,7 +26,7 @@ import numpy as np
 from ..errors import PatternError
 from ..pattern import CreasePattern, Seam
 from ..tolerances import DEFAULT_TOL, Tolerances
-from . import register_layout
+from . import register_layout, register_panel_estimate
 from .assignment import LayoutInfo, attach_info, choose_assignment
 from .spiral import _count, _real
 
@@ -140,3 +140,4 @@ def kresling(
 
 
 register_layout("kresling", kresling)
+register_panel_estimate("kresling", lambda *, sides=6, stories=1, **_: 2 * int(sides) * int(stories))

@@ -38,7 +38,7 @@ import numpy as np
 from ..errors import PatternError
 from ..pattern import CreasePattern, vid
 from ..tolerances import DEFAULT_TOL, Tolerances
-from . import register_layout
+from . import register_layout, register_panel_estimate
 from .assignment import LayoutInfo, attach_info, choose_assignment, kawasaki_residuals
 from .spiral_lattice import (
     RADIAL_STEPS,
@@ -569,3 +569,13 @@ def _default_hub(outer: Any) -> float | None:
 register_layout("log-spiral", log_spiral_grid)
 register_layout("spiral-rings", spiral_rings)
 register_layout("spiral-radial", spiral_radial)
+
+
+def _spiral_panels(*, arms: int = 12, rings: int = 6, triangulate: str = "none", **_: Any) -> int:
+    """Cells arms x rings, doubled when triangulated, plus the hub (an estimate for the size limit)."""
+    return int(arms) * int(rings) * (1 if triangulate == "none" else 2) + 1
+
+
+register_panel_estimate("log-spiral", _spiral_panels)
+register_panel_estimate("spiral-rings", lambda **p: _spiral_panels(**{"triangulate": "short", **p}))
+register_panel_estimate("spiral-radial", lambda **p: _spiral_panels(**{"triangulate": "short", **p}))

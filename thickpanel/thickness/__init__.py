@@ -28,6 +28,7 @@ __all__ = [
     "methods_for",
     "MethodAdvice",
     "register_method",
+    "method_function",
     "ThickPlan",
     "Slab",
     "HingeLine",
@@ -52,6 +53,11 @@ def register_method(name: str, fn: MethodFn) -> MethodFn:
 
 for _mod in (tapered, offset_panel, offset_crease, membrane_gap, hinge_shift, plain):
     register_method(_mod.NAME, _mod.build)
+
+
+def method_function(name: str) -> MethodFn | None:
+    """The callable registered as thickness method ``name`` (None when unknown)."""
+    return _REGISTRY.get(name)
 
 
 def available_methods() -> list[str]:
