@@ -2,11 +2,12 @@
 
 Formats (:func:`available_formats`):
 
-- ``step``: named STEP assembly in the requested fold state (``assembly.step``);
-- ``step-parts``: one STEP per part in its flat machining pose (``step/P017.step``);
+- ``step``: named STEP assembly in the requested fold state (``assembly.step``, or
+  ``<prefix>-assembly-t1.00.step``);
+- ``step-parts``: one STEP per part, fused into one solid, in its shop pose (``step/P017.step``);
 - ``stl``: one STL per part, flat machining pose (``stl/P017.stl``), and the whole assembly in
   the fold state (``assembly.stl``);
-- ``3mf``: build plate of the flat array, one object per part (``plate.3mf``);
+- ``3mf``: parts packed onto build plates of ``plate_mm`` (``plate.3mf`` or ``plate-1.3mf`` ...);
 - ``dxf``: cut profiles per part (``dxf/P017.dxf``);
 - ``bom``: ``bom.csv`` and ``bom.json``;
 - ``metrics``: ``metrics.json``;
