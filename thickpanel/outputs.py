@@ -25,6 +25,8 @@ MAX_COMPONENT_BYTES = 255
 def prepare_out_dir(out_dir: Path) -> list[Path]:
     """Check that ``out_dir`` can hold the build's files; create it. Returns the folders created.
 
+    Temporary files (``.*.tmp``) left in it by an earlier run that was killed mid-write are removed.
+
     Raises
     ------
     ExportError
@@ -49,6 +51,9 @@ def prepare_out_dir(out_dir: Path) -> list[Path]:
         for d in reversed(missing):
             d.mkdir()
             created.append(d)
+        for stale in out_dir.rglob(".*.tmp"):  # left by a run that was killed mid-write
+            if stale.is_file():
+                stale.unlink()
         fd, probe = tempfile.mkstemp(prefix=".write-check.", suffix=".tmp", dir=out_dir)
         os.close(fd)
         os.unlink(probe)

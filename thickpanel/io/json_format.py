@@ -143,7 +143,7 @@ def pattern_from_dict(
         if key not in d:
             raise PatternError(f"missing key {key!r}{_where(source)}")
     units = d.get("units", "mm")
-    if units not in UNITS_MM:
+    if not isinstance(units, str) or units not in UNITS_MM:
         raise PatternError(f"key 'units'{_where(source)} is {units!r}; allowed: {', '.join(UNITS_MM)}")
     name = d.get("name", "")
     if not isinstance(name, str):
