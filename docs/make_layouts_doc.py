@@ -111,8 +111,9 @@ def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) ->
     mountain/valley colours), stored as a 64-colour palette PNG to keep the repository small."""
     cols = 2
     rows = (len(states) + cols - 1) // cols
-    fig = plt.figure(figsize=(6.0 * cols, 4.6 * rows + 0.4), dpi=100)
-    fig.subplots_adjust(left=0.0, right=1.0, bottom=0.0, top=1 - 0.4 / (4.6 * rows + 0.4), wspace=0.0, hspace=0.08)
+    height = 4.6 * rows + 0.9
+    fig = plt.figure(figsize=(6.0 * cols, height), dpi=100)
+    fig.subplots_adjust(left=0.0, right=1.0, bottom=0.0, top=1 - 0.75 / height, wspace=0.0, hspace=0.1)
     for k, (t, poses) in enumerate(states):
         ax = fig.add_subplot(rows, cols, k + 1, projection="3d")
         polys = _panel_polys(pattern, poses)
@@ -134,7 +135,7 @@ def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) ->
         ax.view_init(elev=28, azim=-60)
         ax.set_axis_off()
         ax.set_title(f"t = {t:g}  (longest extent {span.max():.0f} mm)", fontsize=12)
-    fig.suptitle(title, fontsize=13)
+    fig.suptitle(title, fontsize=14, y=1 - 0.12 / height, va="top")
     buf = io.BytesIO()
     fig.savefig(buf, format="png", dpi=100)
     plt.close(fig)

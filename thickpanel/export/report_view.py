@@ -345,7 +345,9 @@ def fold_sequence_section(res: Any, fractions: tuple[float, ...] = SEQUENCE) -> 
         return '<p class="note">fold-state renders: not available.</p>'
     pts = np.vstack([np.vstack(_faces(res, f[0])) for f in frames])
     lim = (pts.min(axis=0), pts.max(axis=0))
-    out = ['<div style="overflow-x:auto">']
+    # wider than the page's text column, centred on it, so each view shows at its own 640 px
+    out = ['<div style="position:relative;left:50%;transform:translateX(-50%);width:min(1290px,98vw);'
+           'overflow-x:auto">']
     for t in fractions:
         png = fold_views_png(res, t, lim)
         if png:
