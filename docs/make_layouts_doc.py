@@ -107,11 +107,14 @@ def shape_of(pattern: Any, poses: np.ndarray) -> str:
 
 
 def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) -> bytes:
-    """PNG of the fold states side by side (grey shading only; no mountain/valley colours)."""
-    fig = plt.figure(figsize=(9.0, 2.6), dpi=70)
-    fig.subplots_adjust(left=0.0, right=1.0, bottom=0.0, top=0.86, wspace=0.0)
+    """PNG of the fold states, two per row, each view 600 px wide (grey shading only; no
+    mountain/valley colours), stored as a 64-colour palette PNG to keep the repository small."""
+    cols = 2
+    rows = (len(states) + cols - 1) // cols
+    fig = plt.figure(figsize=(6.0 * cols, 4.6 * rows + 0.4), dpi=100)
+    fig.subplots_adjust(left=0.0, right=1.0, bottom=0.0, top=1 - 0.4 / (4.6 * rows + 0.4), wspace=0.0, hspace=0.08)
     for k, (t, poses) in enumerate(states):
-        ax = fig.add_subplot(1, len(states), k + 1, projection="3d")
+        ax = fig.add_subplot(rows, cols, k + 1, projection="3d")
         polys = _panel_polys(pattern, poses)
         pts = np.concatenate(polys)
         shade = []
@@ -120,22 +123,27 @@ def picture(pattern: Any, states: list[tuple[float, np.ndarray]], title: str) ->
             n = n / (np.linalg.norm(n) or 1.0)
             shade.append(0.35 + 0.5 * abs(n[2]))
         ax.add_collection3d(
-            Poly3DCollection(polys, facecolors=[(g, g, g) for g in shade], edgecolors="k", linewidths=0.3)
+            Poly3DCollection(polys, facecolors=[(g, g, g) for g in shade], edgecolors="k", linewidths=0.5)
         )
         lo, hi = pts.min(0), pts.max(0)
         span = np.maximum(hi - lo, 1e-3 * float((hi - lo).max()))
         ax.set_xlim(lo[0], lo[0] + span[0])
         ax.set_ylim(lo[1], lo[1] + span[1])
         ax.set_zlim(lo[2], lo[2] + span[2])
-        ax.set_box_aspect(tuple(span / span.max()))  # true proportions, each state at its own scale
+        ax.set_box_aspect(tuple(span / span.max()), zoom=1.15)  # true proportions, each state at its own scale
         ax.view_init(elev=28, azim=-60)
         ax.set_axis_off()
-        ax.set_title(f"t = {t:g}  ({span.max():.0f} mm)", fontsize=8)
-    fig.suptitle(title, fontsize=8)
+        ax.set_title(f"t = {t:g}  (longest extent {span.max():.0f} mm)", fontsize=12)
+    fig.suptitle(title, fontsize=13)
     buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=70)
+    fig.savefig(buf, format="png", dpi=100)
     plt.close(fig)
-    return buf.getvalue()
+    from PIL import Image
+
+    img = Image.open(io.BytesIO(buf.getvalue())).convert("RGB").quantize(colors=64)
+    out = io.BytesIO()
+    img.save(out, format="PNG", optimize=True)
+    return out.getvalue()
 
 
 def _write(path: Path, data: bytes) -> None:

@@ -119,7 +119,8 @@ def _check_flagship(s: dict, files: list[Path]) -> None:
     # Euler's formula for a connected plane graph, outer face excluded (West 2001, Thm 6.1.21)
     assert m["vertices"] - m["creases"] + m["panels"] == 1
     assert 20 <= m["panels"] <= 150
-    assert {f.suffix for f in files} >= {".step", ".stl", ".3mf", ".dxf", ".csv", ".json"}
+    # no 3MF: machined CFRP panels up to ~430 x 480 mm fit no 250 x 250 mm build plate
+    assert {f.suffix for f in files} >= {".step", ".stl", ".dxf", ".csv", ".json"}
     # one definition of the sizes: the summary and the stowed metrics.json agree on the deployed
     # diameter (the rim's circumscribed circle, 1200 mm across: CRC Standard Mathematical Tables)
     assert m["deployed_diameter_mm"] == pytest.approx(1200.0, rel=1e-9)

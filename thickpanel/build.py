@@ -271,7 +271,8 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         res.check("thickness method", "n/a", why or why2)
         return
     with run.stage("method") as rec:
-        advice = list(advise(cp, target, thickness=thickness, path=res.path))
+        built: dict[str, Any] = {}  # plans advice built with default options, reused below
+        advice = list(advise(cp, target, thickness=thickness, path=res.path, plans=built))
         res.advice = advice
         names = [a.method for a in advice]
         for a in advice:
@@ -306,7 +307,8 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         if impl is not None:
             _check_options(impl, opts, f"[method] options (method {name!r})", fixed=fixed)
         try:
-            plan = make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
+            plan = built[name] if not opts and name in built else \
+                make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
         except TypeError as exc:
             raise DesignFileError(f"[method] options for {name!r}: {exc}") from exc
         except ThickpanelError as exc:
@@ -452,6 +454,7 @@ def _solids(run: _Run) -> None:
             run.blocked = "no valid solids"
             return
         res.parts = parts
+        _given_density(parts, d)
         plist = list(parts.parts)
         rec["note"] = f"{len(plist)} parts"
         res.metrics["parts"] = len(plist)
@@ -470,6 +473,17 @@ def _mass(part: Any) -> float | None:
     except ThickpanelError:
         return None
     return None if m is None else float(m)
+
+
+def _given_density(parts: Any, d: Design) -> None:
+    """Put the design's ``[panels] density`` (kg/m^3) and its source on every panel part."""
+    rho = getattr(d.panels, "density", None)
+    if rho is None:
+        return
+    for p in parts.parts:
+        if p.kind == "panel":
+            p.attrs["density_kg_m3"] = float(rho)
+            p.attrs["density_source"] = d.panels.density_source or "design file [panels] density"
 
 
 def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> None:
@@ -491,14 +505,21 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
     note = ""
     if res.path is None and any(t > 0 for t in states):
         states, note = (0.0,), "; no fold path: deployed (flat) state only"
+    ex = res.design.exports
+    shop = {"prefix": res.design.name if ex.prefix else "", "plate_mm": ex.plate_mm}
     with run.stage("exports") as rec:
-        n = 0
+        # state-independent files (per-part STEP/STL/DXF, 3MF plates, BOM) once, in the root
+        paths = fn(res.parts, res.out_dir, list(formats), state=None, clearance=res.clearance,
+                   scope="parts", **shop)
+        res.outputs += [Path(p) for p in paths]
+        n = len(paths)
         for i, t in enumerate(states):
             if run.progress:
                 run.progress("exports", i, len(states))
             state = res.path.at(float(t)) if res.path is not None else None
             sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
-            paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance, path=res.path)
+            paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance,
+                       path=res.path, scope="state", **shop)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
         rec["note"] = f"{n} files in {res.out_dir}{note}"

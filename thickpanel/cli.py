@@ -4,7 +4,7 @@ Commands::
 
     thickpanel new NAME [--scenario S] [--force]   write a commented starter design file NAME.toml
     thickpanel check FILE                          validation, foldability, methods, clearance, hinges
-    thickpanel fold FILE --at T [-o DIR]           export one fold state (0 deployed .. 1 stowed)
+    thickpanel fold FILE --at T [-o DIR] [--force] export one fold state (0 deployed .. 1 stowed)
     thickpanel build FILE [-o DIR]                 everything: checks, solids, exports, report
     thickpanel report FILE [-o DIR]                the HTML report only
     thickpanel study STUDY.toml [--workers N] [--scheduler tcp://HOST:PORT]   variant sweep
@@ -83,7 +83,9 @@ def _parser() -> argparse.ArgumentParser:
     f = sub.add_parser("fold", parents=[common], help="export one fold state")
     f.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
     f.add_argument("--at", type=float, required=True, metavar="T", help="fold fraction, 0 deployed .. 1 stowed")
-    f.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
+    f.add_argument("-o", "--out", type=Path,
+                   help="output folder (default: fold-tT.TT inside the [exports] folder or exports/NAME)")
+    f.add_argument("--force", action="store_true", help="write into an output folder that already exists")
     f.add_argument("--formats", help="comma-separated export formats (default: [exports] formats)")
     b = sub.add_parser("build", parents=[common], help="checks, solids, exports, drawings and report")
     b.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
@@ -237,7 +239,11 @@ def _run(args: argparse.Namespace) -> int:
     elif args.command == "fold":
         if not 0.0 <= args.at <= 1.0:
             raise _InputError(f"--at {args.at:g} is outside the fold fraction range 0 (deployed) .. 1 (stowed)")
-        s = build.run_fold(design, args.at, args.out, progress=prog, formats=formats)
+        out = args.out or build.default_out_dir(design) / f"fold-t{args.at:.2f}"
+        if out.exists() and not args.force:
+            raise _InputError(f"output folder {out} already exists; use --force to write into it "
+                              "(files of the same name are replaced) or -o to choose another folder")
+        s = build.run_fold(design, args.at, out, progress=prog, formats=formats)
     elif args.command == "build":
         s = build.run_build(design, args.out, progress=prog, formats=formats)
     else:

@@ -96,6 +96,8 @@ class PanelsSpec:
     thickness: float
     material: str
     overrides: tuple[PanelOverride, ...] = ()
+    density: float | None = None
+    density_source: str = ""
 
 
 @dataclass(frozen=True)
@@ -138,6 +140,8 @@ class ExportSpec:
     folder: Path | None
     report: bool
     drawings: bool
+    plate_mm: tuple[float, float] = (250.0, 250.0)
+    prefix: bool = True
 
 
 @dataclass(frozen=True)
@@ -514,7 +518,8 @@ class _Validator:
         if self.check_layout:
             self._check_materials([("[panels] material", mat)] + [
                 (f"[[panels.override]] #{i + 1} material", o.material) for i, o in enumerate(out)])
-        return PanelsSpec(thick, mat, tuple(out))
+        rho = self.value(_key("panels", "density"), t)
+        return PanelsSpec(thick, mat, tuple(out), rho, self.value(_key("panels", "density_source"), t))
 
     def _check_materials(self, items: list[tuple[str, str | None]]) -> None:
         try:
@@ -607,8 +612,10 @@ class _Validator:
                         raise self.fail(f"[exports] formats: {f!r} is not an export format{suggest(f, names)} "
                                         f"(available: {', '.join(names)})")
         folder = (self.base / v["folder"]).resolve() if v["folder"] else None
+        if len(v["plate_mm"]) != 2:
+            raise self.fail(f"[exports] plate_mm = {v['plate_mm']!r} must be [width, depth] in mm, each > 0")
         return ExportSpec(tuple(v["formats"]), tuple(sorted(set(v["states"]))), folder, v["report"],
-                          v["drawings"])
+                          v["drawings"], (v["plate_mm"][0], v["plate_mm"][1]), v["prefix"])
 
     def checks(self) -> CheckSpec:
         t = self.section("checks")

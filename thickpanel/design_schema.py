@@ -90,6 +90,11 @@ SCHEMA: tuple[Key, ...] = (
     Key("panels", "thickness", "float", "mm", None, "Panel thickness.", lo=0.0, hi=1000.0, required=True, lo_open=True),
     Key("panels", "material", "str", "", "", "Material key of the hinge materials table "
         "(`hinges.materials.MATERIALS`); empty for unspecified (no masses in the bill of materials)."),
+    Key("panels", "density", "float", "kg/m^3", None, "Density of the panel material, for materials outside the "
+        "table (or to replace its value); the bill of materials lists it with source `design file`. Unset: the "
+        "material table's density.", lo=0.0, hi=30000.0, lo_open=True),
+    Key("panels", "density_source", "str", "", "design file [panels] density", "Where `density` comes from "
+        "(data sheet, measurement); printed in the bill of materials."),
     Key("panels.override", "panels", "list[str]", "", [], "Panel ids this override applies to (`P003`)."),
     Key("panels.override", "radius", "list[float, 2]", "mm", None, "Radial band [inner, outer] of panel "
         "centroids, measured from the pattern's centre, that this override applies to.", lo=0.0),
@@ -114,6 +119,11 @@ SCHEMA: tuple[Key, ...] = (
         "(0 deployed, 1 stowed); with more than one, each goes to its own sub-folder `t0.50/`.", lo=0.0, hi=1.0),
     Key("exports", "folder", "str", "", "", "Output folder, relative to the design file; empty: "
         "`exports/<name>` in the current directory. The command line's `-o` wins."),
+    Key("exports", "plate_mm", "list[float]", "mm", [250.0, 250.0], "Build plate [width, depth] of the 3MF plates; "
+        "parts are packed onto as many plates as needed, a part larger than the plate is an error.",
+        lo=0.0, hi=10000.0, lo_open=True),
+    Key("exports", "prefix", "bool", "", True, "Put the design name in front of the top-level output names "
+        "(`<name>-assembly-t1.00.step`, `<name>-bom.csv`, `<name>-plate.3mf`)."),
     Key("exports", "report", "bool", "", True, "Write the HTML report with the exports."),
     Key("exports", "drawings", "bool", "", True, "Write SVG and PNG crease drawings with the exports."),
     Key("checks", "min_clearance", "float", "mm", 0.0, "Least clearance between non-adjacent parts over the "

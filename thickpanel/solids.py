@@ -105,8 +105,12 @@ class Part:
 
     @property
     def mass(self) -> float | None:
-        """Mass in g (volume mm^3 x density g/cm^3 / 1000); None when no material is given."""
-        rho = get_material(self.material, who=self.name).density
+        """Mass in g (volume mm^3 x density g/cm^3 / 1000); None when no material is given.
+
+        A density in ``attrs["density_kg_m3"]`` (the design's ``[panels] density``) overrides
+        the material table's."""
+        given = self.attrs.get("density_kg_m3")
+        rho = float(given) / 1000.0 if given else get_material(self.material, who=self.name).density
         return None if math.isnan(rho) else self.volume * rho / 1000.0
 
     @cached_property

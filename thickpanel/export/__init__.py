@@ -2,11 +2,12 @@
 
 Formats (:func:`available_formats`):
 
-- ``step``: named STEP assembly in the requested fold state (``assembly.step``);
-- ``step-parts``: one STEP per part in its flat machining pose (``step/P017.step``);
+- ``step``: named STEP assembly in the requested fold state (``assembly.step``, or
+  ``<prefix>-assembly-t1.00.step``);
+- ``step-parts``: one STEP per part, fused into one solid, in its shop pose (``step/P017.step``);
 - ``stl``: one STL per part, flat machining pose (``stl/P017.stl``), and the whole assembly in
   the fold state (``assembly.stl``);
-- ``3mf``: build plate of the flat array, one object per part (``plate.3mf``);
+- ``3mf``: parts packed onto build plates of ``plate_mm`` (``plate.3mf`` or ``plate-1.3mf`` ...);
 - ``dxf``: cut profiles per part (``dxf/P017.dxf``);
 - ``bom``: ``bom.csv`` and ``bom.json``;
 - ``metrics``: ``metrics.json``;
@@ -56,6 +57,17 @@ class ExportOptions:
         Name of the assembly (STEP top label, 3MF title).
     path : FoldPath or None
         Fold path whose sampled states the glTF animation shows (None: no animation).
+    prefix : str
+        Prefix of the top-level file names (``<prefix>-assembly-t1.00.step``); empty: the plain
+        names (``assembly.step``).
+    scope : str
+        ``all`` (every file of the formats), ``state`` (only the files that depend on the fold
+        state: assembly STEP/STL, metrics) or ``parts`` (only the state-independent ones: per-part
+        STEP/STL/DXF, 3MF plates, BOM).
+    state_tag : str
+        Added to the names of state files when a prefix is given (``t1.00``).
+    plate_mm : (float, float)
+        Build-plate size of the 3MF plates, mm.
     """
 
     state: Any = None
@@ -65,6 +77,26 @@ class ExportOptions:
     step_schema: str = "AP214"
     name: str = "array"
     path: Any = None
+    prefix: str = ""
+    scope: str = "all"
+    state_tag: str = ""
+    plate_mm: tuple[float, float] = (250.0, 250.0)
+
+    def top(self, base: str, ext: str, *, state: bool = False) -> str:
+        """File name of a top-level output: ``<prefix>-<base>[-<tag>].<ext>`` or ``<base>.<ext>``."""
+        if not self.prefix:
+            return f"{base}.{ext}"
+        tag = f"-{self.state_tag}" if state and self.state_tag else ""
+        return f"{self.prefix}-{base}{tag}.{ext}"
+
+    def wants(self, scope: str) -> bool:
+        """Whether files of ``scope`` (``state`` or ``parts``) are rendered."""
+        return self.scope in ("all", scope)
+
+
+#: Which formats depend on the fold state (``state``), which not (``parts``), and ``both``.
+FORMAT_SCOPES = {"step": "state", "step-parts": "parts", "stl": "both", "3mf": "parts",
+                 "dxf": "parts", "bom": "parts", "metrics": "state"}
 
 
 FormatFn = Callable[["PartSet", ExportOptions], dict[str, bytes]]
@@ -79,15 +111,14 @@ def _step(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
 
     poses = ps.poses(_state(ps, opt))
     items = [(p.name, p.pieces, poses[p.panel]) for p in ps.parts]
-    return {"assembly.step": step_bytes(items, name=opt.name, schema=opt.step_schema)}
+    return {opt.top("assembly", "step", state=True): step_bytes(items, name=opt.name,
+                                                                 schema=opt.step_schema)}
 
 
 def _step_parts(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
-    from .step import step_bytes
+    from .step import part_step_bytes
 
-    return {f"step/{p.name}.step": step_bytes([(p.name, p.pieces, p.flat_location)],
-                                              name=p.name, schema=opt.step_schema)
-            for p in ps.parts}
+    return {f"step/{p.name}.step": part_step_bytes(p, schema=opt.step_schema) for p in ps.parts}
 
 
 def _meshes(ps: PartSet, opt: ExportOptions) -> list:
@@ -104,33 +135,36 @@ def _meshes(ps: PartSet, opt: ExportOptions) -> list:
 
 def _stl(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
     from .mesh import stl_bytes, transform
+    from .shop import shop_location
 
     meshes = _meshes(ps, opt)
-    poses = ps.poses(_state(ps, opt))
-    out = {f"stl/{p.name}.stl": stl_bytes([transform(m, p.flat_location)], name=p.name)
-           for p, m in zip(ps.parts, meshes, strict=True)}
-    out["assembly.stl"] = stl_bytes(
-        [transform(m, poses[p.panel]) for p, m in zip(ps.parts, meshes, strict=True)],
-        name=opt.name)
+    out = {}
+    if opt.wants("parts"):
+        out = {f"stl/{p.name}.stl": stl_bytes([transform(m, shop_location(p))], name=p.name)
+               for p, m in zip(ps.parts, meshes, strict=True)}
+    if opt.wants("state"):
+        poses = ps.poses(_state(ps, opt))
+        out[opt.top("assembly", "stl", state=True)] = stl_bytes(
+            [transform(m, poses[p.panel]) for p, m in zip(ps.parts, meshes, strict=True)],
+            name=opt.name)
     return out
 
 
 def _3mf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
-    from .mesh import threemf_bytes
+    from .plates import plate_files
 
-    meshes = _meshes(ps, opt)
-    zmin = min(float(v[:, 2].min()) for v, f in meshes if len(v))
-    shifted = [(p.name, (v - [0.0, 0.0, zmin], f)) for p, (v, f) in zip(ps.parts, meshes,
-                                                                         strict=True)]
-    return {"plate.3mf": threemf_bytes(shifted, title=opt.name)}
+    return plate_files(ps, _meshes(ps, opt), opt.plate_mm, title=opt.name,
+                       name=lambda k, n: opt.top("plate" if n == 1 else f"plate-{k}", "3mf"))
 
 
 def _dxf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
-    from .profiles import profile_dxf_bytes
+    from .profiles import pin_fits, profile_dxf_bytes
 
+    slabs = {sl.panel: sl for sl in ps.plan.slabs}
+    fits = pin_fits(ps.parts)
     out = {}
     for p in ps.parts:
-        data = profile_dxf_bytes(p)
+        data = profile_dxf_bytes(p, slabs.get(p.panel) if p.kind == "panel" else None, fits)
         if data is not None:
             out[f"dxf/{p.name}.dxf"] = data
     return out
@@ -139,7 +173,7 @@ def _dxf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
 def _bom(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
     from .bom import bom_csv_bytes, bom_json_bytes
 
-    return {"bom.csv": bom_csv_bytes(ps), "bom.json": bom_json_bytes(ps)}
+    return {opt.top("bom", "csv"): bom_csv_bytes(ps), opt.top("bom", "json"): bom_json_bytes(ps)}
 
 
 def _metrics(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
@@ -194,15 +228,28 @@ def _names(formats: str | Iterable[str]) -> list[str]:
 def render(partset: PartSet, formats: str | Iterable[str], options: ExportOptions) -> dict[str,
                                                                                           bytes]:
     """All files of ``formats`` as ``{relative name: bytes}``, nothing written."""
+    from .shop import clear_cache
+
     files: dict[str, bytes] = {}
-    for name in _names(formats):
+    try:
+        _render(partset, _names(formats), options, files)
+    finally:
+        clear_cache()
+    return files
+
+
+def _render(partset: PartSet, names: list[str], options: ExportOptions,
+            files: dict[str, bytes]) -> None:
+    for name in names:
+        scope = FORMAT_SCOPES.get(name, "state")
+        if scope != "both" and not options.wants(scope):
+            continue
         try:
             files.update(_FORMATS[name](partset, options))
         except ThickpanelError:
             raise
         except Exception as exc:
             raise ExportError(f"export format {name!r} failed: {exc}") from exc
-    return files
 
 
 def export_parts(
@@ -217,6 +264,9 @@ def export_parts(
     step_schema: str = "AP214",
     name: str | None = None,
     path: Any = None,
+    prefix: str = "",
+    scope: str = "all",
+    plate_mm: tuple[float, float] = (250.0, 250.0),
 ) -> list[Path]:
     """Write the chosen formats of a part set under ``out_dir``; return the written paths.
 
@@ -239,6 +289,14 @@ def export_parts(
         Assembly name; defaults to the pattern name or ``array``.
     path : FoldPath, optional
         Fold path of the glTF animation.
+    prefix : str
+        Design name put in front of the top-level file names (``<prefix>-assembly-t1.00.step``,
+        ``<prefix>-bom.csv``, ``<prefix>-plate.3mf``); empty keeps the plain names.
+    scope : str
+        ``all``, ``state`` (fold-state files only) or ``parts`` (state-independent files only).
+    plate_mm : (float, float)
+        Build plate of the 3MF plates, mm; a part whose footprint does not fit raises
+        :class:`ExportError` before anything is written.
 
     Returns
     -------
@@ -250,13 +308,18 @@ def export_parts(
     root = Path(out_dir)
     if root.exists() and not root.is_dir():
         raise ExportError(f"output folder {root} exists and is not a folder")
+    nm = name or getattr(partset.plan.pattern, "name", "") or "array"
+    if scope not in ("all", "state", "parts"):
+        raise ExportError(f"export scope {scope!r} is not one of 'all', 'state', 'parts'")
+    t = getattr(state if state is not None else partset.state, "t", None)
+    tag = f"t{float(t):.2f}" if t is not None else "t0.00"
+    opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm,
+                        path, prefix, scope, tag, (float(plate_mm[0]), float(plate_mm[1])))
+    files = render(partset, formats, opt)  # before the folder is made: a refusal writes nothing
     try:
         root.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise ExportError(f"cannot create output folder {root}: {exc}") from None
     if not os.access(root, os.W_OK | os.X_OK):
         raise ExportError(f"output folder {root} is not writable")
-    nm = name or getattr(partset.plan.pattern, "name", "") or "array"
-    opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm, path)
-    files = render(partset, formats, opt)
     return write_all(root, files)

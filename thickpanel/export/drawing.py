@@ -64,6 +64,11 @@ _LEGEND_TEXT = {
 }
 
 
+ID_PANEL_PT = 9.0  #: panel-id font size of the PNG drawing, points
+ID_CREASE_PT = 7.5  #: crease-id font size of the PNG drawing, points
+ID_FONT_DIV = (57.0, 68.0)  #: SVG panel / crease id font size = pattern extent / these
+
+
 def nice_length(target: float) -> float:
     """The largest 1, 2 or 5 x 10^k not above ``target`` (mm); used for scale bars."""
     if not (target > 0 and math.isfinite(target)):
@@ -170,7 +175,9 @@ def pattern_svg(
     vy = -(fr.y1 + fr.margin)  # svg y = -pattern y
     out: list[str] = [
         '<?xml version="1.0" encoding="UTF-8"?>',
-        f'<svg xmlns="http://www.w3.org/2000/svg" version="1.1" width="{_fmt(fr.width)}mm" '
+        '<svg xmlns="http://www.w3.org/2000/svg" '
+        'xmlns:inkscape="http://www.inkscape.org/namespaces/inkscape" '
+        f'version="1.1" width="{_fmt(fr.width)}mm" '
         f'height="{_fmt(fr.height)}mm" viewBox="{_fmt(vx)} {_fmt(vy)} {_fmt(fr.width)} {_fmt(fr.height)}">',
         f"<title>{escape(pattern.name or 'crease pattern')}</title>",
         f'<rect x="{_fmt(vx)}" y="{_fmt(vy)}" width="{_fmt(fr.width)}" height="{_fmt(fr.height)}" fill="white"/>',
@@ -198,15 +205,22 @@ def pattern_svg(
                 out.append(f'<text x="{_fmt(mx)}" y="{_fmt(-my)}" dy="{_fmt(-1.5 * lw)}">seam {cid(s.a)}</text>')
         out.append("</g>")
     if labels:
-        out.append(f'<g id="labels" font-family="sans-serif" text-anchor="middle" font-size="{_fmt(fs)}">')
+        # the ids are one layer (a group an SVG editor can hide), sized like the PNG's: panel ids
+        # about 1/57 and crease ids about 1/68 of the pattern's extent
+        ext = max(fr.x1 - fr.x0, fr.y1 - fr.y0)
+        pfs, cfs = ext / ID_FONT_DIV[0], ext / ID_FONT_DIV[1]
+        out.append(f'<g id="labels" inkscape:groupmode="layer" inkscape:label="ids" font-family="sans-serif" '
+                   f'text-anchor="middle" font-size="{_fmt(pfs)}">')
         for p in pattern.panels:
             cx, cy = p.centroid
-            out.append(f'<text x="{_fmt(cx)}" y="{_fmt(-cy)}" dy="{_fmt(fs / 3)}">{pid(p.index)}</text>')
+            out.append(f'<text x="{_fmt(cx)}" y="{_fmt(-cy)}" dy="{_fmt(pfs / 3)}" font-weight="bold">'
+                       f"{pid(p.index)}</text>")
         v, c = pattern.vertices, pattern.creases
         mids = (v[c[:, 0]] + v[c[:, 1]]) / 2
-        out.append(f'<g font-size="{_fmt(0.7 * fs)}" fill="#444">')
+        out.append(f'<g font-size="{_fmt(cfs)}" fill="#333" stroke="white" stroke-width="{_fmt(cfs / 5)}" '
+                   'paint-order="stroke">')
         for k, (mx, my) in enumerate(mids.tolist()):
-            out.append(f'<text x="{_fmt(mx)}" y="{_fmt(-my)}">{cid(k)}</text>')
+            out.append(f'<text x="{_fmt(mx)}" y="{_fmt(-my)}" dy="{_fmt(cfs / 3)}">{cid(k)}</text>')
         out.append("</g></g>")
     ybase = -(fr.y0 - fr.margin * 0.5) + fr.footer * 0.45  # footer row, svg coordinates
     if title and pattern.name:
@@ -297,11 +311,16 @@ def pattern_png(
         ax.add_collection(LineCollection(list(seg), colors="black", linewidths=lwp, linestyles=[style], capstyle=cap))
     fs = max(4.0 * fr.lw * pt_per_mm, 5.0)
     if labels:
+        # ids legible at 100 % zoom: panel ids ID_PANEL_PT, crease ids ID_CREASE_PT points at the image's
+        # own size (at 150 dpi about 19 and 16 px), crease ids centred on their crease over a white pad
+        grow = max(1.0, size_in / 8.0)
         for p in pattern.panels:
-            ax.text(*p.centroid, pid(p.index), ha="center", va="center", fontsize=fs)
+            ax.text(*p.centroid, pid(p.index), ha="center", va="center", fontsize=ID_PANEL_PT * grow,
+                    fontweight="bold")
         v, c = pattern.vertices, pattern.creases
         for k, (mx, my) in enumerate(((v[c[:, 0]] + v[c[:, 1]]) / 2).tolist()):
-            ax.text(mx, my, cid(k), fontsize=0.7 * fs, color="#444")
+            ax.text(mx, my, cid(k), fontsize=ID_CREASE_PT * grow, color="#333", ha="center", va="center",
+                    bbox={"boxstyle": "square,pad=0.05", "facecolor": "white", "edgecolor": "none", "alpha": 0.8})
     for s in pattern.seams:
         v, c = pattern.vertices, pattern.creases
         for e in (s.a, s.b):
@@ -332,9 +351,12 @@ def pattern_png(
 
 
 def write_drawings(
-    pattern: CreasePattern, out_dir: str | os.PathLike[str], stem: str, *, labels: bool = False, dpi: int = 150
+    pattern: CreasePattern, out_dir: str | os.PathLike[str], stem: str, *, labels: bool = True, dpi: int = 150
 ) -> list[Path]:
     """Write ``<stem>.svg`` and ``<stem>.png`` into ``out_dir`` (created if missing).
+
+    ``labels`` (default True) adds the id layer: panel ids at centroids, crease ids at midpoints,
+    as every exported file is named by these ids; pass False for a drawing without ids.
 
     Both are rendered before anything is written; each file goes through a temp file and a rename.
 

@@ -104,7 +104,7 @@ function clearanceAt(t) {
   if (!c.t.length) return null;
   let best = 0;
   for (let i = 1; i < c.t.length; i++) if (Math.abs(c.t[i] - t) < Math.abs(c.t[best] - t)) best = i;
-  return { t: c.t[best], c: c.c[best], pair: c.pair[best] };
+  return { t: c.t[best], c: c.c[best], pair: c.pair[best], beyond: c.beyond[best] };
 }
 
 function paint() {
@@ -138,7 +138,10 @@ function setT(t) {
     closest.textContent = row.pair
       ? 'Closest pair at the sweep state t = ' + row.t.toFixed(3) + ': ' + row.pair[0] + ' and ' + row.pair[1]
         + ' (marked), clearance ' + (row.c === null ? 'beyond the search margin' : row.c.toFixed(3) + ' mm') + '.'
-      : 'No pair of slabs within the search margin at t = ' + row.t.toFixed(3) + '.';
+      : (row.beyond
+        ? 'At the sweep state t = ' + row.t.toFixed(3) + ' no two slabs come within the ' + D.margin
+          + ' mm search margin: clearance at least ' + D.margin + ' mm, no closest pair measured.'
+        : 'No pair of slabs counted at t = ' + row.t.toFixed(3) + '.');
   } else {
     closest.textContent = 'No clearance sweep in this build.';
   }
@@ -226,7 +229,8 @@ function drawPlot() {
     g.fillText(v.toFixed(2), 6, Y(v) + 4);
     g.fillText((k / 4).toFixed(2), X(k / 4) - 12, H - 12);
   }
-  g.fillText('clearance (mm) against fold fraction t; dashed: required ' + D.required + ' mm', L + 6, 13);
+  g.fillText('clearance (mm) against fold fraction t; dashed: required ' + D.required + ' mm'
+    + (D.margin !== null ? '; capped at the ' + D.margin + ' mm search margin (a bound: at least this)' : ''), L + 6, 13);
   g.setLineDash([6, 4]); g.strokeStyle = '#555';
   g.beginPath(); g.moveTo(X(0), Y(D.required)); g.lineTo(X(1), Y(D.required)); g.stroke();
   g.setLineDash([]); g.strokeStyle = '#111'; g.lineWidth = 1.6;

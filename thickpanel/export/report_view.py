@@ -197,12 +197,24 @@ def view_data(res: Any) -> dict[str, Any] | None:
         clr["t"].append(round(float(row.t), 6))
         clr["c"].append(round(c, 5) if math.isfinite(c) else None)
         clr["pair"].append(list(row.pair) if row.pair else None)
+    # the sweep measures pairs only out to its margin: a state whose nearest measured pair lies beyond
+    # it has a clearance of at least the margin (not that pair's distance), and no closest pair is known
+    margin = float(getattr(rep, "margin", math.inf) or math.inf) if rep is not None else math.inf
+    flags = []
+    for i, c in enumerate(clr["c"]):
+        far = math.isfinite(margin) and (c is None or c > margin)
+        flags.append(far)
+        if far:
+            clr["c"][i] = round(margin, 5)
+            clr["pair"][i] = None
+    clr["beyond"] = flags
     order = np.argsort(clr["t"], kind="stable")
     clr = {k: [v[i] for i in order] for k, v in clr.items()}
     design = getattr(res, "design", None)
     required = float(design.checks.min_clearance) if design is not None else 0.0
     return {"parts": descs, "t": ts, "poses": _b64(stack.astype("<f4")), "nposes": int(stack.shape[1]),
-            "clearance": clr, "required": required, "mesh_note": note,
+            "clearance": clr, "required": required,
+            "margin": margin if math.isfinite(margin) else None, "mesh_note": note,
             "source": "fold path" if getattr(res, "path", None) is not None else "least-squares fold"}
 
 

@@ -33,7 +33,7 @@ from ..errors import ExportError
 from ..reproducible import pin_step_timestamp
 from ..typing import FloatArray
 
-__all__ = ["SCHEMAS", "step_bytes"]
+__all__ = ["SCHEMAS", "step_bytes", "part_step_bytes"]
 
 #: Accepted schema names -> the OCCT ``write.step.schema`` value.
 SCHEMAS = {"AP214": "AP214IS", "AP242": "AP242DIS", "AP203": "AP203"}
@@ -92,10 +92,11 @@ def step_bytes(
     Returns
     -------
     bytes
-        Structure: top assembly ``name`` -> one component per part, named like the part. A part
-        of several solids refers to its own sub-assembly (same name) with one component per
-        solid; a part of one solid (a pin, a plain panel) refers to that solid directly, which
-        may be a prototype shared with equal parts (named after its kind, e.g. ``rod-7``).
+        Structure: top assembly ``name`` -> one component per part, named like the part, whose
+        product carries the part id too. A part of one unique solid refers to that solid
+        directly; any other part refers to its own product (named by its id) with one component
+        per solid; solids shared between equal parts are written once, named after the first
+        part using them (``P000-solid-3``).
     """
     _setup(schema)
     doc = TDocStd_Document(TCollection_ExtendedString("XmlOcaf"))
@@ -104,23 +105,24 @@ def step_bytes(
     TDataStd_Name.Set_s(top, TCollection_ExtendedString(name))
     protos: dict[Any, Any] = {}
     eye = np.eye(4)
-    shared = len(items) > 1
     for part_name, pieces, pose in items:
         labels = []
         for j, (key, proto, m) in enumerate(pieces):
             lab = protos.get(key)
             if lab is None:
                 lab = tool.AddShape(proto, False)
-                unique = key[0] == "unique" or len(pieces) == 1 and not shared
-                label = f"{part_name}-{j}" if unique else f"{key[0]}-{len(protos)}"
+                # a lone unique solid is the part's product itself; shared or several solids are
+                # named after the first part that uses them
+                lone = len(pieces) == 1 and key[0] == "unique"
+                label = part_name if lone else f"{part_name}-solid-{j}"
                 TDataStd_Name.Set_s(lab, TCollection_ExtendedString(label))
                 protos[key] = lab
             labels.append((lab, m))
         place = eye if pose is None else np.asarray(pose, dtype=float)
-        if len(labels) == 1:  # one solid: the part's component refers to it directly
+        if len(labels) == 1 and pieces[0][0][0] == "unique":  # the part's product is the solid
             lab, m = labels[0]
             comp = tool.AddComponent(top, lab, occ.location(place @ m))
-        else:
+        else:  # the part's own product (named by its id) holding its (maybe shared) solids
             asm = tool.NewShape()
             TDataStd_Name.Set_s(asm, TCollection_ExtendedString(part_name))
             for lab, m in labels:
@@ -142,3 +144,20 @@ def step_bytes(
         return pin_step_timestamp(_renumber(Path(tmp).read_bytes()))
     finally:
         os.unlink(tmp)
+
+
+def part_step_bytes(part: Any, *, schema: str = "AP214") -> bytes:
+    """A STEP file of one part as its shop receives it: one product named by the part id.
+
+    A part of several touching solids (slab, standoffs, barrels) is glue-fused into one solid
+    (:func:`thickpanel.export.shop.one_piece`); the part lies in its shop pose
+    (:func:`thickpanel.export.shop.shop_location`: panels flat, pins along +x).
+    """
+    from .shop import one_piece, shop_location
+
+    if len(part.pieces) == 1:  # keep the prototype and its placement apart (a located shape
+        _, solid, m = part.pieces[0]  # would add an unnamed product under the part)
+    else:
+        solid, m = one_piece(part), np.eye(4)
+    return step_bytes([(part.name, [(("unique", part.name), solid, m)], shop_location(part))],
+                      name=part.name, schema=schema)

@@ -13,7 +13,18 @@ from pathlib import Path
 
 from ..errors import ExportError
 
-__all__ = ["write_atomic", "write_all"]
+__all__ = ["file_mode", "write_atomic", "write_all"]
+
+
+def file_mode() -> int:
+    """Permission bits of a new file: ``0o666`` less the process umask (0644 under umask 022).
+
+    ``mkstemp`` creates owner-only (0600) files; the exporters give their files the mode a plain
+    ``open`` would, so a shop's other accounts can read them.
+    """
+    old = os.umask(0o022)
+    os.umask(old)
+    return 0o666 & ~old
 
 
 def write_atomic(path: str | os.PathLike[str], data: bytes) -> Path:
@@ -37,6 +48,7 @@ def write_atomic(path: str | os.PathLike[str], data: bytes) -> Path:
     except OSError as exc:
         raise ExportError(f"cannot write {p}: folder {p.parent} is not writable ({exc})") from None
     try:
+        os.fchmod(fd, file_mode())
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
             fh.flush()

@@ -151,6 +151,7 @@ def methods_for(
     path: FoldPath | None = None,
     sweep: bool = False,
     tol: Tolerances = DEFAULT_TOL,
+    plans: dict[str, ThickPlan] | None = None,
 ) -> list[MethodAdvice]:
     """Every registered method with applies / does not apply, the reason and the reachable fold.
 
@@ -158,7 +159,8 @@ def methods_for(
     full-range methods before approximate ones), then partial ones by reachable fold, the
     ``plain`` baseline last; then the methods that do not apply. With ``sweep=True`` and a path,
     every applicable plan is also swept (:func:`thickpanel.clearance.clearance`) and methods that
-    clear the whole path come before those that collide.
+    clear the whole path come before those that collide. A ``plans`` dict given receives every
+    plan built here (default options), keyed by method name, so a caller can reuse the chosen one.
     """
     kind, why = _rigid_verdict(pattern)
     out: list[MethodAdvice] = []
@@ -179,6 +181,8 @@ def methods_for(
                     reach = 0.0
             out.append(MethodAdvice(name, False, str(exc), reach))
             continue
+        if plans is not None:
+            plans[name] = plan
         reach = float(plan.meta.get("reachable", plan.target_fold))
         if name == "plain":
             reason = "baseline only: slabs meet on the inner side of every fold"

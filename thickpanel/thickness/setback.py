@@ -71,15 +71,37 @@ def section_overlap(a: np.ndarray, b: np.ndarray) -> np.ndarray:
         positive = the polygons overlap by that depth, <= 0 = apart (minus a lower bound of the gap).
     """
     best = np.full(a.shape[0], np.inf)
+    ax, ay, bx, by = a[:, None, :, 0], a[:, None, :, 1], b[:, None, :, 0], b[:, None, :, 1]
     for poly in (a, b):
-        e = np.roll(poly, -1, axis=1) - poly
-        n = np.stack([e[..., 1], -e[..., 0]], axis=-1)
-        ln = np.linalg.norm(n, axis=-1, keepdims=True)
-        n = n / np.where(ln > 0, ln, 1.0)
-        pa = np.einsum("nkd,njd->nkj", n, a)  # (N, axes, verts)
-        pb = np.einsum("nkd,njd->nkj", n, b)
+        e = np.concatenate((poly[:, 1:], poly[:, :1]), axis=1) - poly
+        nx, ny = e[..., 1], -e[..., 0]
+        ln = np.sqrt(nx * nx + ny * ny)
+        ln = np.where(ln > 0, ln, 1.0)
+        nx, ny = (nx / ln)[..., None], (ny / ln)[..., None]
+        pa = nx * ax + ny * ay  # (N, axes, verts)
+        pb = nx * bx + ny * by
         ov = np.minimum(pa.max(-1), pb.max(-1)) - np.maximum(pa.min(-1), pb.min(-1))
         best = np.minimum(best, ov.min(-1))
+    return best
+
+
+def _overlap_one(a: list[list[float]], b: list[tuple[float, float]]) -> float:
+    """:func:`section_overlap` of one pair of polygons given as lists of (x, y), mm."""
+    best = math.inf
+    for poly in (a, b):
+        x0, y0 = poly[-1]
+        for x1, y1 in poly:  # edge i -> i+1 visited from the closing edge on; min over edges is order-free
+            nx, ny = y1 - y0, -(x1 - x0)
+            ln = math.sqrt(nx * nx + ny * ny)
+            if not ln > 0:
+                ln = 1.0
+            nx, ny = nx / ln, ny / ln
+            pa = [nx * x + ny * y for x, y in a]
+            pb = [nx * x + ny * y for x, y in b]
+            ov = min(max(pa), max(pb)) - max(min(pa), min(pb))
+            if ov < best:
+                best = ov
+            x0, y0 = x1, y1
     return best
 
 
@@ -118,6 +140,10 @@ def hinge_section_overlap(
         pairs.append((_rect(0.0, sl, min(a0, 0.0), max(a1, 0.0)), right[0]))
     if sr > 0:
         pairs.append((left[0], _rect(-sr, 0.0, min(b0, 0.0), max(b1, 0.0))))
+    if n == 1:  # one angle (the Brent refinement): plain floats, same arithmetic, no array overhead
+        cs, sn = float(c[0]), float(s[0])
+        return np.array([max(_overlap_one(pa.tolist(), [(cs * x + sn * y, -sn * x + cs * y) for x, y in pb.tolist()])
+                             for pa, pb in pairs)])
     for pa, pb in pairs:
         moved = np.einsum("nij,kj->nki", rot, pb)
         worst = np.maximum(worst, section_overlap(np.broadcast_to(pa, (n, 4, 2)), moved))
