@@ -7,6 +7,7 @@ Commands::
     thickpanel fold FILE --at T [-o DIR] [--force] export one fold state (0 deployed .. 1 stowed)
     thickpanel build FILE [-o DIR]                 everything: checks, solids, exports, report
     thickpanel report FILE [-o DIR]                the HTML report only
+    thickpanel study STUDY.toml [--workers N] [--scheduler tcp://HOST:PORT]   variant sweep
 
 Exit codes: 0 ok, 1 the design fails its checks, 2 bad input, 3 internal error.
 ``--json`` prints a machine-readable summary on stdout; ``--quiet`` prints nothing but errors;
@@ -97,7 +98,35 @@ def _parser() -> argparse.ArgumentParser:
     r = sub.add_parser("report", parents=[common], help="write the HTML report only")
     r.add_argument("file", type=Path, help="design file (TOML, mm and degrees; see docs/design-file.md)")
     r.add_argument("-o", "--out", type=Path, help="output folder (default: [exports] folder or exports/NAME)")
+    st = sub.add_parser("study", parents=[common], help="variant sweep of a base design (resumable table, Pareto view)")
+    st.add_argument("file", type=Path, help="study file (TOML: base design, [[axis]] tables; see docs/studies.md)")
+    st.add_argument("--workers", type=int, default=None, help="1 runs in-process; more starts a local Dask cluster "
+                    "(default: all cores)")
+    st.add_argument("--scheduler", default=None, metavar="tcp://HOST:PORT", help="run on this Dask scheduler")
+    st.add_argument("--limit", type=int, default=None, help="compute at most this many new variants")
+    st.add_argument("--connect-timeout", type=float, default=10.0, help="seconds to reach --scheduler (default 10)")
+    st.add_argument("-o", "--out", type=Path, help="result folder (default: the study file's output)")
     return p
+
+
+def _study(args: argparse.Namespace) -> int:
+    from .study import load_study, run_study
+
+    study = load_study(args.file)
+    if args.workers is not None and args.workers < 1:
+        raise _InputError(f"--workers {args.workers} must be at least 1")
+    res = run_study(study, workers=args.workers, scheduler=args.scheduler, limit=args.limit, out=args.out,
+                    progress=None if args.quiet else sys.stderr, connect_timeout=args.connect_timeout)
+    s = {"ok": True, "command": "study", "variants": len(res.rows), "computed": len(res.computed),
+         "skipped": res.skipped, "failed": res.failed, "files": [str(f) for f in res.files], "exit_code": EXIT_OK}
+    if args.json:
+        _emit_json(s)
+    elif not args.quiet:
+        sys.stdout.write(f"{study.name}: {len(res.rows)} variants in the table ({len(res.computed)} computed now, "
+                         f"{res.skipped} already there, {res.failed} failed)\n")
+        for f in res.files:
+            sys.stdout.write(f"  {f}\n")
+    return EXIT_OK
 
 
 def _emit_json(obj: dict[str, Any]) -> None:
@@ -192,6 +221,8 @@ class _InputError(Exception):
 def _run(args: argparse.Namespace) -> int:
     if args.command == "new":
         return _new(args)
+    if args.command == "study":
+        return _study(args)
     from . import build
     from .design import load_design
 
