@@ -16,7 +16,7 @@ from pathlib import Path
 
 from thickpanel.study import run_study, study_from_dict
 
-EX = Path(__file__).resolve().parents[1] / "examples"
+EX = Path(__file__).resolve().parents[1] / "examples" / "studies"
 
 
 def main() -> int:

@@ -13,7 +13,7 @@ import pytest
 from thickpanel.cli import main
 from thickpanel.study import StudyError, load_study, run_study, study_from_dict, variants
 
-EX = Path(__file__).resolve().parents[1] / "examples"
+EX = Path(__file__).resolve().parents[1] / "examples" / "studies"
 
 
 def _study(tmp_path: Path, axes: list[dict], **extra) -> Path:
