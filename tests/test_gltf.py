@@ -11,6 +11,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+from tests.sheet_designs import miura_sheet_toml
 from tests.test_export import read_step
 from thickpanel import occ
 from thickpanel.build import run_pipeline
@@ -21,21 +22,7 @@ from thickpanel.export.gltf import AXES, SECONDS_PER_FOLD, glb_bytes
 
 pygltflib = pytest.importorskip("pygltflib")
 
-DESIGN = """
-name = "gltf-sheet"
-[layout]
-family = "miura"
-a = 25.0
-b = 25.0
-gamma_deg = 65.0
-nx = 3
-ny = 2
-[panels]
-thickness = 1.5
-[fold]
-target_deg = 100.0
-states = 8
-"""
+DESIGN = miura_sheet_toml("gltf-sheet", states=8)
 
 
 @pytest.fixture(scope="module")

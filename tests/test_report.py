@@ -19,26 +19,12 @@ from pathlib import Path
 
 import pytest
 
+from tests.sheet_designs import miura_sheet_toml
 from thickpanel.build import run_pipeline
 from thickpanel.design import loads_design
 from thickpanel.export.report import SAFETY, render_report, write_report
 
-DESIGN = """
-name = "report-sheet"
-description = "3 x 2 Miura sheet for the report test"
-[layout]
-family = "miura"
-a = 25.0
-b = 25.0
-gamma_deg = 65.0
-nx = 3
-ny = 2
-[panels]
-thickness = 1.5
-[fold]
-target_deg = 100.0
-states = 12
-"""
+DESIGN = miura_sheet_toml("report-sheet", states=12, description="3 x 2 Miura sheet for the report test")
 
 VOID = {"meta", "img", "br", "hr", "link", "input"}
 

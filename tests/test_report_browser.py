@@ -19,6 +19,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from tests.sheet_designs import miura_sheet_toml
 from thickpanel.build import run_pipeline
 from thickpanel.design import loads_design
 from thickpanel.export.report import write_report
@@ -28,21 +29,7 @@ ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-f
         "--disable-background-networking", "--disable-component-update", "--disable-sync",
         "--use-angle=swiftshader", "--enable-unsafe-swiftshader"]
 
-DESIGN = """
-name = "browser-sheet"
-[layout]
-family = "miura"
-a = 25.0
-b = 25.0
-gamma_deg = 65.0
-nx = 3
-ny = 2
-[panels]
-thickness = 1.5
-[fold]
-target_deg = 120.0
-states = 10
-"""
+DESIGN = miura_sheet_toml("browser-sheet", states=10, target_deg=120.0)
 
 
 def _browser_or_skip():

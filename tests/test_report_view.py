@@ -16,26 +16,13 @@ import xml.etree.ElementTree as ET
 import numpy as np
 import pytest
 
+from tests.sheet_designs import miura_sheet_toml
 from thickpanel.build import run_pipeline
 from thickpanel.design import loads_design
 from thickpanel.export.drawing import pattern_svg, write_drawings
 from thickpanel.export.report_view import VIEW_PX, fold_sequence_section, fold_views_png, view_data
 
-DESIGN = """
-name = "view-sheet"
-[layout]
-family = "miura"
-a = 25.0
-b = 25.0
-gamma_deg = 65.0
-nx = 3
-ny = 2
-[panels]
-thickness = 1.5
-[fold]
-target_deg = 100.0
-states = 9
-"""
+DESIGN = miura_sheet_toml("view-sheet", states=9)
 
 
 @pytest.fixture(scope="module")
