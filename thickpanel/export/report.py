@@ -20,7 +20,7 @@ from typing import Any
 import numpy as np
 
 from ..reproducible import source_date_epoch
-from .report_view import fold_sequence_section, view_section
+from .report_view import fold_sequence_section, slab_faces, view_section
 
 __all__ = ["write_report", "render_report", "fold_strip_png", "envelope_png", "crease_png", "SAFETY"]
 
@@ -111,29 +111,6 @@ def crease_png(pattern: Any) -> bytes:
     return _png(fig)
 
 
-def _slab_faces(res: Any, poses: np.ndarray) -> list[np.ndarray]:
-    """Polygons (k, 3) of every slab's faces (or bare panels) placed by ``poses`` (P, 4, 4), mm."""
-    faces: list[np.ndarray] = []
-    plan = getattr(res, "plan", None)
-    if plan is None:
-        for p in res.pattern.panels:
-            poly = res.pattern.panel_polygon(p.index)
-            h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
-            faces.append((h @ poses[p.index].T)[:, :3])
-        return faces
-    for s in plan.slabs:
-        poly = s.polygon_array()
-        n = len(poly)
-        T = poses[s.panel]
-        bot = np.column_stack([poly, np.full(n, s.z0), np.ones(n)]) @ T.T
-        top = np.column_stack([poly, np.full(n, s.z1), np.ones(n)]) @ T.T
-        faces += [bot[:, :3], top[:, :3]]
-        for i in range(n):
-            j = (i + 1) % n
-            faces.append(np.array([bot[i, :3], bot[j, :3], top[j, :3], top[i, :3]]))
-    return faces
-
-
 def _draw_state(ax: Any, faces: list[np.ndarray], lim: tuple[np.ndarray, np.ndarray]) -> None:
     from mpl_toolkits.mplot3d.art3d import Poly3DCollection
 
@@ -160,7 +137,7 @@ def fold_strip_png(res: Any, fractions: Sequence[float] = (0.0, 0.25, 0.5, 0.75,
 
     fig = Figure(figsize=(3.0 * len(fractions), 3.2), dpi=90)
     for k, (t, fr) in enumerate(zip(fractions, frames, strict=True)):
-        faces = _slab_faces(res, fr[0])
+        faces = slab_faces(res, fr[0])
         pts = np.vstack(faces)
         ax = fig.add_subplot(1, len(fractions), k + 1, projection="3d")
         _draw_state(ax, faces, (pts.min(axis=0), pts.max(axis=0)))
@@ -176,7 +153,7 @@ def envelope_png(res: Any) -> bytes | None:
         return None
     from matplotlib.figure import Figure
 
-    faces = _slab_faces(res, fr[0])
+    faces = slab_faces(res, fr[0])
     pts = np.vstack(faces)
     # the same principal axes as the envelope figures of the summary (largest spread first)
     mean = pts.mean(axis=0)

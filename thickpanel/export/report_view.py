@@ -31,7 +31,7 @@ import numpy as np
 
 from ..typing import FloatArray
 
-__all__ = ["THREE_VERSION", "view_data", "view_section", "fold_sequence_section", "fold_views_png"]
+__all__ = ["THREE_VERSION", "view_data", "view_section", "fold_sequence_section", "fold_views_png", "slab_faces"]
 
 THREE_VERSION = "0.170.0"  #: version of the vendored three.js files (see export/vendor/README.md)
 MAX_STATES = 61  #: sampled fold states embedded in the viewer at most
@@ -270,7 +270,7 @@ def view_section(res: Any) -> str:
 
 
 # ------------------------------------------------------------------------- pictures
-def _faces(res: Any, poses: FloatArray) -> list[FloatArray]:
+def slab_faces(res: Any, poses: FloatArray) -> list[FloatArray]:
     """Polygons (k, 3) mm of every slab face (or bare panel) placed by ``poses`` (P, 4, 4)."""
     plan = getattr(res, "plan", None)
     faces: list[FloatArray] = []
@@ -307,7 +307,7 @@ def fold_views_png(res: Any, t: float, lim: tuple[FloatArray, FloatArray] | None
     from matplotlib.figure import Figure
     from mpl_toolkits.mplot3d.art3d import Poly3DCollection
 
-    faces = _faces(res, fr[0])
+    faces = slab_faces(res, fr[0])
     pts = np.vstack(faces)
     lo, hi = lim if lim is not None else (pts.min(axis=0), pts.max(axis=0))
     c = (lo + hi) / 2
@@ -343,7 +343,7 @@ def fold_sequence_section(res: Any, fractions: tuple[float, ...] = SEQUENCE) -> 
     frames = [res.poses_at(t) for t in fractions] if hasattr(res, "poses_at") else []
     if not frames or any(f is None for f in frames):
         return '<p class="note">fold-state renders: not available.</p>'
-    pts = np.vstack([np.vstack(_faces(res, f[0])) for f in frames])
+    pts = np.vstack([np.vstack(slab_faces(res, f[0])) for f in frames])
     lim = (pts.min(axis=0), pts.max(axis=0))
     # wider than the page's text column, centred on it, so each view shows at its own 640 px
     out = ['<div style="position:relative;left:50%;transform:translateX(-50%);width:min(1290px,98vw);'
