@@ -1,47 +1,84 @@
 """Benchmark: one design study in-process (1 worker) and on a 2-worker loopback LocalCluster.
 
-Prints a table of wall times and the speed-up ratio from one run; checks the two tables hold the
-same rows apart from timings. The machine may be shared: the ratio is only as good as the free cores.
+Runs the 200-variant spiral disc study ``examples/studies/study-disc-200.toml`` twice in one go,
+prints a table of wall times, start-up (cluster start and the per-worker imports), compute time,
+CPU seconds per variant and the speed-up, and checks that the two tables hold the same rows apart
+from timings. Both runs use one BLAS/OpenMP thread per process (Dask sets the same in its
+workers), so "1 worker" means one core.
 
-Run: ``PYTHONPATH=$PWD .venv/bin/python bench/bench_study.py [N]`` (N variants, default 200,
-a multiple of 10).
+The machine may be shared: the ratio is only as good as the free cores. The load average before
+and after each run is printed beside it; CPU seconds per variant show whether a slower run was
+starved of CPU or did more work.
+
+Run: ``PYTHONPATH=$PWD .venv/bin/python bench/bench_study.py [STUDY.toml] [--limit N] [--workers 1,2]``
 """
 
 from __future__ import annotations
 
-import sys
-import tempfile
-import time
-from pathlib import Path
+import os
 
-from thickpanel.study import run_study, study_from_dict
+for _v in ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_v, "1")
+
+import argparse  # noqa: E402 - the thread limits above must be set before numpy is imported
+import resource  # noqa: E402
+import tempfile  # noqa: E402
+import time  # noqa: E402
+from pathlib import Path  # noqa: E402
+from typing import Any  # noqa: E402
+
+from thickpanel.study import TIMING_COLUMNS, load_study, run_study  # noqa: E402
 
 EX = Path(__file__).resolve().parents[1] / "examples" / "studies"
 
 
-def main() -> int:
-    n = int(sys.argv[1]) if len(sys.argv) > 1 else 200
-    study = study_from_dict({
-        "base": str(EX / "study-disc-base.toml"),
-        "axis": [{"key": "panels.thickness", "start": 1.0, "stop": 3.0, "step": 0.5},
-                 {"key": "layout.slits", "values": [2, 4]},
-                 {"key": "fold.target_deg", "low": 60.0, "high": 100.0}],
-        "sample": {"n": max(1, n // 10), "method": "lhs", "seed": 11},
-    })
-    times, tables = {}, {}
+def _cpu() -> float:
+    """CPU seconds of this process and of its finished children (the cluster's workers count once
+    the cluster is closed)."""
+    s, c = resource.getrusage(resource.RUSAGE_SELF), resource.getrusage(resource.RUSAGE_CHILDREN)
+    return s.ru_utime + s.ru_stime + c.ru_utime + c.ru_stime
+
+
+def _stripped(rows: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    return sorted(({k: v for k, v in r.items() if k not in TIMING_COLUMNS} for r in rows), key=lambda r: r["id"])
+
+
+def main(argv: list[str] | None = None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("study", nargs="?", type=Path, default=EX / "study-disc-200.toml")
+    ap.add_argument("--limit", type=int, default=None, help="only the first N variants (a quick look)")
+    ap.add_argument("--workers", default="1,2", help="comma-separated worker counts, run in this order")
+    args = ap.parse_args(argv)
+    study = load_study(args.study)
+    counts = [int(x) for x in args.workers.split(",")]
+    res: dict[int, dict[str, Any]] = {}
     with tempfile.TemporaryDirectory() as tmp:
-        for w in (1, 2):
-            t0 = time.perf_counter()
-            res = run_study(study, workers=w, out=Path(tmp) / f"w{w}")
-            times[w] = time.perf_counter() - t0
-            tables[w] = sorted(({k: v for k, v in r.items() if k != "seconds"} for r in res.rows),
-                               key=lambda r: r["id"])
-    same = tables[1] == tables[2]
-    print(f"{'workers':>7} {'variants':>8} {'failed':>6} {'wall s':>8} {'ratio':>6}")
-    for w in (1, 2):
-        failed = sum(r["status"] != "ok" for r in tables[w])
-        print(f"{w:>7} {len(tables[w]):>8} {failed:>6} {times[w]:>8.1f} {times[1] / times[w]:>6.2f}")
-    print(f"identical rows (apart from timings): {same}")
+        for w in counts:
+            load0 = os.getloadavg()[0]
+            c0, t0 = _cpu(), time.perf_counter()
+            run = run_study(study, workers=w, out=Path(tmp) / f"w{w}", limit=args.limit)
+            wall, cpu = time.perf_counter() - t0, _cpu() - c0
+            ok = [r for r in run.rows if r["status"] == "ok"]
+            res[w] = {"rows": _stripped(run.rows), "wall": wall, "cpu": cpu, "load": (load0, os.getloadavg()[0]),
+                      "start": run.timings.get("start_s", float("nan")),
+                      "compute": run.timings.get("compute_s", float("nan")),
+                      "cpu_var": sum(r["cpu_seconds"] for r in ok) / max(1, len(ok)),
+                      "wall_var": sum(r["seconds"] for r in ok) / max(1, len(ok)),
+                      "failed": run.failed}
+    base = counts[0]
+    print(f"study {args.study.name}: {len(res[base]['rows'])} variants; {os.cpu_count()} cores; "
+          f"uptime load average (1 min) before -> after each run")
+    print(f"{'workers':>7} {'variants':>8} {'failed':>6} {'wall s':>8} {'start s':>7} {'compute s':>9} "
+          f"{'CPU s':>7} {'CPU s/var':>9} {'wall s/var':>10} {'speed-up':>8} {'compute x':>9} {'load':>11}")
+    for w in counts:
+        r = res[w]
+        print(f"{w:>7} {len(r['rows']):>8} {r['failed']:>6} {r['wall']:>8.1f} {r['start']:>7.1f} {r['compute']:>9.1f} "
+              f"{r['cpu']:>7.1f} {r['cpu_var']:>9.3f} {r['wall_var']:>10.3f} {res[base]['wall'] / r['wall']:>8.2f} "
+              f"{res[base]['compute'] / r['compute']:>9.2f} {r['load'][0]:>5.2f}->{r['load'][1]:<5.2f}")
+    same = all(res[w]["rows"] == res[base]["rows"] for w in counts)
+    print("speed-up: wall of the first row over wall of this row (start-up included); compute x: the same "
+          "without start-up")
+    print(f"identical rows (apart from {', '.join(TIMING_COLUMNS)}): {same}")
     return 0 if same else 1
 
 

@@ -115,8 +115,16 @@ def _study(args: argparse.Namespace) -> int:
     study = load_study(args.file)
     if args.workers is not None and args.workers < 1:
         raise _InputError(f"--workers {args.workers} must be at least 1")
-    res = run_study(study, workers=args.workers, scheduler=args.scheduler, limit=args.limit, out=args.out,
-                    progress=None if args.quiet else sys.stderr, connect_timeout=args.connect_timeout)
+    if not args.connect_timeout > 0:
+        raise _InputError(f"--connect-timeout {args.connect_timeout:g} must be more than 0 s")
+    try:
+        res = run_study(study, workers=args.workers, scheduler=args.scheduler, limit=args.limit, out=args.out,
+                        progress=None if args.quiet else sys.stderr, connect_timeout=args.connect_timeout)
+    except KeyboardInterrupt:
+        out = args.out or study.output
+        sys.stderr.write(f"\nthickpanel: study interrupted; the table in {out} holds every variant finished so "
+                         "far; run the same command again to compute only the rest\n")
+        raise
     s = {"ok": True, "command": "study", "variants": len(res.rows), "computed": len(res.computed),
          "skipped": res.skipped, "failed": res.failed, "files": [str(f) for f in res.files], "exit_code": EXIT_OK}
     if args.json:
