@@ -10,7 +10,8 @@ The machine may be shared: the ratio is only as good as the free cores. The load
 and after each run is printed beside it; CPU seconds per variant show whether a slower run was
 starved of CPU or did more work.
 
-Run: ``PYTHONPATH=$PWD .venv/bin/python bench/bench_study.py [STUDY.toml] [--limit N] [--workers 1,2]``
+Run: ``PYTHONPATH=$PWD .venv/bin/python bench/bench_study.py [STUDY.toml] [--limit N] [--workers 1,2]
+[--blocks K]``
 """
 
 from __future__ import annotations
@@ -27,7 +28,7 @@ import time  # noqa: E402
 from pathlib import Path  # noqa: E402
 from typing import Any  # noqa: E402
 
-from thickpanel.study import TIMING_COLUMNS, load_study, run_study  # noqa: E402
+from thickpanel.study import TIMING_COLUMNS, load_study, run_study, variants  # noqa: E402
 
 EX = Path(__file__).resolve().parents[1] / "examples" / "studies"
 
@@ -48,26 +49,39 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("study", nargs="?", type=Path, default=EX / "study-disc-200.toml")
     ap.add_argument("--limit", type=int, default=None, help="only the first N variants (a quick look)")
     ap.add_argument("--workers", default="1,2", help="comma-separated worker counts, run in this order")
+    ap.add_argument("--blocks", type=int, default=1,
+                    help="split the study into this many blocks and run the worker counts in turn on each "
+                    "(1, 2, 1, 2, ...) so that a load that drifts during the bench hits both alike; every "
+                    "block starts its own cluster, so start-up is counted once per block")
     args = ap.parse_args(argv)
     study = load_study(args.study)
     counts = [int(x) for x in args.workers.split(",")]
-    res: dict[int, dict[str, Any]] = {}
+    total = len(variants(study)) if args.limit is None else min(args.limit, len(variants(study)))
+    size = -(-total // max(1, args.blocks))
+    res: dict[int, dict[str, Any]] = {w: {"wall": 0.0, "cpu": 0.0, "start": 0.0, "compute": 0.0, "load": []}
+                                      for w in counts}
     with tempfile.TemporaryDirectory() as tmp:
-        for w in counts:
-            load0 = os.getloadavg()[0]
-            c0, t0 = _cpu(), time.perf_counter()
-            run = run_study(study, workers=w, out=Path(tmp) / f"w{w}", limit=args.limit)
-            wall, cpu = time.perf_counter() - t0, _cpu() - c0
-            ok = [r for r in run.rows if r["status"] == "ok"]
-            res[w] = {"rows": _stripped(run.rows), "wall": wall, "cpu": cpu, "load": (load0, os.getloadavg()[0]),
-                      "start": run.timings.get("start_s", float("nan")),
-                      "compute": run.timings.get("compute_s", float("nan")),
-                      "cpu_var": sum(r["cpu_seconds"] for r in ok) / max(1, len(ok)),
-                      "wall_var": sum(r["seconds"] for r in ok) / max(1, len(ok)),
-                      "failed": run.failed}
+        for b in range(0, total, size):
+            for w in counts:
+                load0 = os.getloadavg()[0]
+                c0, t0 = _cpu(), time.perf_counter()
+                run = run_study(study, workers=w, out=Path(tmp) / f"w{w}", limit=min(size, total - b))
+                r = res[w]
+                r["wall"] += time.perf_counter() - t0
+                r["cpu"] += _cpu() - c0
+                r["start"] += run.timings.get("start_s", 0.0)
+                r["compute"] += run.timings.get("compute_s", 0.0)
+                r["load"] += [load0, os.getloadavg()[0]]
+                r["run"] = run
+    for w in counts:
+        run = res[w].pop("run")
+        ok = [r for r in run.rows if r["status"] == "ok"]
+        res[w].update(rows=_stripped(run.rows), failed=run.failed, load=(res[w]["load"][0], res[w]["load"][-1]),
+                      cpu_var=sum(r["cpu_seconds"] for r in ok) / max(1, len(ok)),
+                      wall_var=sum(r["seconds"] for r in ok) / max(1, len(ok)))
     base = counts[0]
-    print(f"study {args.study.name}: {len(res[base]['rows'])} variants; {os.cpu_count()} cores; "
-          f"uptime load average (1 min) before -> after each run")
+    print(f"study {args.study.name}: {len(res[base]['rows'])} variants in {-(-total // size)} block(s); "
+          f"{os.cpu_count()} cores; uptime load average (1 min) at the first start -> last end")
     print(f"{'workers':>7} {'variants':>8} {'failed':>6} {'wall s':>8} {'start s':>7} {'compute s':>9} "
           f"{'CPU s':>7} {'CPU s/var':>9} {'wall s/var':>10} {'speed-up':>8} {'compute x':>9} {'load':>11}")
     for w in counts:

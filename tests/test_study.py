@@ -79,6 +79,8 @@ def test_bad_axes_name_the_key(tmp_path):
         load_study(_study(tmp_path, [{"key": "panels.thickness", "start": 1.0, "stop": 2.0, "step": -0.5}]))
     with pytest.raises(StudyError, match=r"wrong sign.*use step < 0"):
         load_study(_study(tmp_path, [{"key": "panels.thickness", "start": 3.0, "stop": 2.0, "step": 0.5}]))
+    with pytest.raises(StudyError, match=r"fold.target_deg.*low = 90.0, high = 60.0 must be numbers with low < high"):
+        load_study(_study(tmp_path, [{"key": "fold.target_deg", "low": 90.0, "high": 60.0}], sample={"n": 2}))
     with pytest.raises(StudyError, match="no \\[\\[axis\\]\\]"):
         study_from_dict({"base": str(EX / "study-disc-base.toml")})
     with pytest.raises(StudyError, match="no \\[\\[axis\\]\\]"):
@@ -90,6 +92,10 @@ def test_bad_axis_on_the_command_line_writes_nothing(tmp_path, capsys):
     assert main(["study", str(p)]) == 2
     err = capsys.readouterr().err
     assert "layout.slit" in err and "did you mean 'layout.slits'" in err
+    assert not (tmp_path / "out").exists()
+    ok = _study(tmp_path, [{"key": "layout.slits", "values": [2, 4]}])
+    assert main(["study", str(ok), "--connect-timeout", "0", "--scheduler", "tcp://127.0.0.1:9"]) == 2
+    assert "--connect-timeout 0 must be more than 0 s" in capsys.readouterr().err
     assert not (tmp_path / "out").exists()
 
 

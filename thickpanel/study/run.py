@@ -261,8 +261,13 @@ def _client(workers: int, scheduler: str | None, timeout: float) -> tuple[Any, A
             raise StudyError(f"--scheduler {scheduler}: the scheduler has no workers after {timeout:g} s "
                              f"({type(exc).__name__})") from None
         return client, None
-    cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, host="127.0.0.1",
-                           dashboard_address=None, silence_logs=logging.ERROR)
+    import dask
+
+    # no dashboard, so no use for the workers' statistical profiler (a thread sampling the task's
+    # stack every 10 ms under the GIL); the workers take this configuration from here
+    with dask.config.set({"distributed.worker.profile.enabled": False}):
+        cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, host="127.0.0.1",
+                               dashboard_address=None, silence_logs=logging.ERROR)
     return Client(cluster), cluster
 
 
