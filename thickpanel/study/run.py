@@ -86,7 +86,8 @@ def evaluate(base: str, vid: str, toml_text: str, values: dict[str, Any]) -> dic
 
     The row holds the axis values (``axis.KEY``), ``status``/``ok``, the error class and message
     of a failed variant, every metric of the check (``metric.NAME``, see :func:`flatten_metrics`)
-    and the wall and CPU seconds of this variant (``seconds``, ``cpu_seconds``)."""
+    and the wall and CPU seconds of this variant (``seconds``, ``cpu_seconds``; the CPU of the whole
+    process meanwhile, so on a cluster worker its scheduler-talk threads count too)."""
     from ..build import run_check
     from ..design import loads_design
 
