@@ -83,15 +83,19 @@ def main(argv: list[str] | None = None) -> int:
     print(f"study {args.study.name}: {len(res[base]['rows'])} variants in {-(-total // size)} block(s); "
           f"{os.cpu_count()} cores; uptime load average (1 min) at the first start -> last end")
     print(f"{'workers':>7} {'variants':>8} {'failed':>6} {'wall s':>8} {'start s':>7} {'compute s':>9} "
-          f"{'CPU s':>7} {'CPU s/var':>9} {'wall s/var':>10} {'speed-up':>8} {'compute x':>9} {'load':>11}")
+          f"{'CPU s':>7} {'CPU s/var':>9} {'wall s/var':>10} {'speed-up':>8} {'compute x':>9} {'vs CPU':>6} "
+          f"{'load':>11}")
     for w in counts:
         r = res[w]
         print(f"{w:>7} {len(r['rows']):>8} {r['failed']:>6} {r['wall']:>8.1f} {r['start']:>7.1f} {r['compute']:>9.1f} "
               f"{r['cpu']:>7.1f} {r['cpu_var']:>9.3f} {r['wall_var']:>10.3f} {res[base]['wall'] / r['wall']:>8.2f} "
-              f"{res[base]['compute'] / r['compute']:>9.2f} {r['load'][0]:>5.2f}->{r['load'][1]:<5.2f}")
+              f"{res[base]['compute'] / r['compute']:>9.2f} {res[base]['cpu'] / r['wall']:>6.2f} "
+              f"{r['load'][0]:>5.2f}->{r['load'][1]:<5.2f}")
     same = all(res[w]["rows"] == res[base]["rows"] for w in counts)
     print("speed-up: wall of the first row over wall of this row (start-up included); compute x: the same "
-          "without start-up")
+          "without start-up;\nvs CPU: CPU seconds of the first row over wall of this row. A one-worker run takes at "
+          "least its CPU seconds even on an idle machine,\nso on a shared one this is a lower bound of the speed-up "
+          "(unless the second run was starved too)")
     print(f"identical rows (apart from {', '.join(TIMING_COLUMNS)}): {same}")
     return 0 if same else 1
 
