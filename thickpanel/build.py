@@ -383,10 +383,15 @@ def _clearance(run: _Run) -> None:
 def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
     """Cut the fold path before the first contact at ``tc`` and sweep the shorter path again."""
     kept = tuple(s for s in res.path.states if s.t < tc)
-    if len(kept) < 2:
+    if len(kept) < 2:  # the stowed state is then the flat one: every figure says so, not "target"
+        res.path = res.path.with_states(res.path.states[:1], stop_reason="contact")
+        res.metrics.update(fold_states=1, reached_fold_deg=0.0, stop_reason="contact")
+        for rec in res.stages:
+            if rec.get("stage") == "fold path":
+                rec["note"] = f"1 state, reached 0.0 deg: first contact at t = {tc:.3f}, before any state off flat"
         res.check("fold stops at first contact", "fail", f"first contact at t = {tc:.3f}, before the first "
-                  "sampled state off flat")
-        return rep
+                  "sampled state off flat; the fold path ends at the flat state (0.0 deg)")
+        return sweep(res.plan, res.path, margin=rep.margin)
     res.path = res.path.with_states(kept, stop_reason="contact")  # keeps the exact-state hook
     reach = float(np.abs(kept[-1].angles).max())
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
