@@ -24,7 +24,7 @@ from tests.test_kinematics_degree4 import vertex4
 from thickpanel.crossings import crossing_pairs
 from thickpanel.errors import FoldError, HingeError
 from thickpanel.flat_start import second_order_starts
-from thickpanel.kinematics import joint_slack, loop_model, rigid_foldability
+from thickpanel.kinematics import fold_path, joint_slack, loop_model, rigid_foldability
 from thickpanel.layouts.spiral import log_spiral_grid, spiral_rings
 from thickpanel.path_choice import chosen_path
 from thickpanel.poses import fold_state_from_angles
@@ -153,13 +153,27 @@ def test_symmetric_path_of_slit_grid_keeps_degree4_relations_and_closure(slit_gr
         assert np.ptp(x[sym.orbit == o]) < 1e-9
 
 
-def test_flagship_symmetric_path_names_its_first_crossing(flagship):
-    path = chosen_path(flagship, choose="symmetric", target=np.pi, n_states=37)
-    assert path.stop_reason == "contact"
-    assert path.meta["first_contact"] == "P019/P030"
-    assert np.rad2deg(path.meta["reachable"]) == pytest.approx(140.0, abs=1e-6)
-    assert path.meta["reachable"] > np.deg2rad(100.0)  # beyond the example's old 100 deg stop
-    assert all(not crossing_pairs(st) for st in path.states)
+def test_flagship_paths_name_their_first_crossing(flagship):
+    # The assignment's own path (fold_path) lets the two sides of a slit (P016/P017, joined by a cut)
+    # pass through each other at 105 deg, as the issue measured; the symmetric path crosses at a slit
+    # even earlier, while the clearance choice inside the symmetric subspace gets to 125 deg.
+    base = fold_path(flagship, target=np.pi, n_states=37)
+    first = next(st for st in base.states if crossing_pairs(st))
+    assert np.rad2deg(np.abs(first.angles).max()) == pytest.approx(105.0, abs=0.1)
+    assert crossing_pairs(first)[0].label() == "P016/P017"
+    sym = chosen_path(flagship, choose="symmetric", target=np.pi, n_states=37)
+    assert sym.stop_reason == "contact" and sym.meta["first_contact"] == "P020/P021"
+    assert np.rad2deg(sym.meta["reachable"]) == pytest.approx(65.0, abs=1e-6)
+    clr = chosen_path(flagship, choose="clearance", target=np.pi, n_states=37, keep_symmetry="auto")
+    assert clr.meta["subspace"] == "4-fold symmetric"
+    assert clr.stop_reason == "contact" and clr.meta["first_contact"] == "P016/P017"
+    assert np.rad2deg(clr.meta["reachable"]) == pytest.approx(125.0, abs=1e-6)
+    m = loop_model(flagship)
+    for p in (sym, clr):
+        assert all(not crossing_pairs(st) and st.closure_error < 1e-9 for st in p.states)
+    x = np.array([st.angles[m.var_crease] for st in clr.states])
+    # clearance never unfolds a crease beyond the finite-step sign slack (0.05 x a step of <= 5 deg)
+    assert np.all(np.diff(np.abs(x), axis=0) >= -np.deg2rad(0.25))
 
 
 def test_path_option_errors(flagship):
@@ -257,3 +271,43 @@ def test_flexure_strain_includes_the_play():
     assert d.info["strain"] == pytest.approx(0.4 * abs(c.fold) / 16.0 + 0.05 / 8.0, rel=1e-12)
     with pytest.raises(HingeError, match="play 2 mm"):
         FlexureHinge(play_mm=2.0).design(c)
+
+
+# ------------------------------------------------------------------------ design files
+def _shade_text() -> str:
+    from pathlib import Path
+
+    return (Path(__file__).resolve().parents[1] / "examples" / "sun-shade-disc.toml").read_text()
+
+
+def test_design_fold_path_option_and_its_exclusions():
+    from thickpanel.build import run_pipeline
+    from thickpanel.design import loads_design
+    from thickpanel.errors import DesignFileError
+
+    text = _shade_text().replace("states = 30", 'states = 8\npath = "symmetric"')
+    res = run_pipeline(loads_design(text), stages=("pattern", "fold path"))
+    assert res.path.meta["choice"] == "symmetric" and res.path.meta["subspace"] == "4-fold symmetric"
+    assert res.path.stop_reason == "contact" and res.path.meta["first_contact"] == "P020/P021"
+    assert "path symmetric (4-fold symmetric), zero-thickness panels P020/P021 would cross next" in str(res.stages)
+    with pytest.raises(DesignFileError, match="driver = 'C001' and path = 'symmetric' exclude each other"):
+        loads_design(text.replace('path = "symmetric"', 'path = "symmetric"\ndriver = "C001"'))
+    with pytest.raises(DesignFileError, match="path"):
+        loads_design(text.replace('path = "symmetric"', 'path = "widest"'))
+
+
+def test_stop_at_contact_before_the_first_state_says_flat():
+    # with the hinge axes on the top faces the slit edges of the tapered slabs touch at once
+    # (first contact t = 0.001): the summary must not say "reached 100.0 of 100 deg, stop: target"
+    pytest.importorskip("thickpanel.clearance")
+    from thickpanel.build import run_pipeline
+    from thickpanel.design import loads_design
+
+    text = _shade_text().replace('options = { reference = "bottom" }', 'options = { reference = "top" }')
+    text = text.replace("states = 30", "states = 30\nstop_at_contact = true")
+    res = run_pipeline(loads_design(text), stages=("pattern", "fold path", "method", "clearance"))
+    assert res.metrics["stop_reason"] == "contact" and res.metrics["reached_fold_deg"] == 0.0
+    assert res.path.stop_reason == "contact" and len(res.path.states) == 1
+    fold = next(c for c in res.checks if c["check"] == "fold reaches target")
+    assert fold["verdict"] == "warn" and "reached 0.0 of 100 deg" in fold["detail"]
+    assert "reached 100.0" not in str(res.stages)

@@ -237,6 +237,9 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         if k >= n:
             raise DesignFileError(f"[fold] driver = {d.fold.driver!r}: no such crease (C000..C{n - 1:03d})")
         kw["driver"] = k
+    if d.fold.path != "assignment":  # a chosen path among several freedoms (thickpanel.path_choice)
+        fn, why = _api("path_choice", "chosen_path")
+        kw = {"target": target, "n_states": d.fold.states, "choose": d.fold.path, "keep_symmetry": "auto"}
     with run.stage("fold path") as rec:
         try:
             path = fn(cp, **kw)
@@ -255,6 +258,10 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
                            closure_error=err, stop_reason=path.stop_reason)
         rec["note"] = (f"{len(path.states)} states, reached {_deg(reach):.1f} of {d.fold.target_deg:g} deg, "
                        f"stop: {path.stop_reason}")
+        if path.meta.get("choice", "assignment") != "assignment":
+            hit = path.meta.get("first_contact")
+            rec["note"] += f", path {path.meta['choice']} ({path.meta.get('subspace')})" + (
+                f", zero-thickness panels {hit} would cross next" if hit else "")
         short = reach < target * (1 - 1e-3)
         res.check("fold reaches target", "warn" if short else "pass", rec["note"])
 
@@ -389,6 +396,10 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
         for rec in res.stages:
             if rec.get("stage") == "fold path":
                 rec["note"] = f"1 state, reached 0.0 deg: first contact at t = {tc:.3f}, before any state off flat"
+        for chk in res.checks:
+            if chk.get("check") == "fold reaches target":
+                chk.update(verdict="warn", detail=f"reached 0.0 of {res.design.fold.target_deg:g} deg: stopped at the "
+                           "first contact")  # fmt: skip
         res.check("fold stops at first contact", "fail", f"first contact at t = {tc:.3f}, before the first "
                   "sampled state off flat; the fold path ends at the flat state (0.0 deg)")
         return sweep(res.plan, res.path, margin=rep.margin)

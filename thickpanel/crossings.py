@@ -5,8 +5,9 @@ crossing is a transversal intersection of two triangles of the panels' fan trian
 triangle strictly straddles the other's plane and the two intersection intervals on the line
 where the planes meet overlap by more than ``tol.contact`` (the interval test of Moeller 1997,
 "A fast triangle-triangle intersection test", J. Graphics Tools 2(2)). Coplanar overlaps (a
-stack) are touching, not crossing. Panels sharing a vertex are adjacent and never compared; the
-separation of the others is their smallest triangle-pair distance (0 when they cross).
+stack) are touching, not crossing. Panels joined by a hinge (mountain, valley or flat crease) are
+never compared; panels meeting only at a vertex or along a cut (a slit) are (they can swing through
+each other), a shared vertex being one end of their intersection segment.
 
 Pure geometry (numpy only).
 """
@@ -59,29 +60,33 @@ def panel_triangles(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) ->
 
 
 def nonadjacent_pairs(pattern: CreasePattern) -> IntArray:
-    """(k, 2) panel pairs sharing no vertex."""
-    verts = [set(p.loop) for p in pattern.panels]
-    out = [(a, b) for a in range(len(verts)) for b in range(a + 1, len(verts)) if not (verts[a] & verts[b])]
+    """(k, 2) panel pairs not joined by a hinge (a mountain, valley or flat crease). Pairs meeting only
+    at a vertex or along a cut (a slit) are included: they can pass through each other."""
+    joined = {(min(a, b), max(a, b)) for (a, b), kind in zip(pattern.crease_panels.tolist(), pattern.kinds, strict=True)
+              if a >= 0 and b >= 0 and kind in ("mountain", "valley", "flat")}  # fmt: skip
+    n = pattern.n_panels
+    out = [(a, b) for a in range(n) for b in range(a + 1, n) if (a, b) not in joined]
     return np.array(out, dtype=np.int64).reshape(-1, 2)
 
 
 def _intervals(t: FloatArray, dist: FloatArray, line_d: FloatArray, line_p: FloatArray) -> FloatArray:
-    """(k, 2) interval of each triangle ``t`` (k, 3, 3) on the line (point, direction), given the
-    signed distances (k, 3) of its corners to the other plane (the triangle straddles it)."""
-    sgn = np.sign(dist)
-    # the lone corner: its sign differs from both others
-    lone = np.where(sgn[:, 0] * sgn[:, 1] > 0, 2, np.where(sgn[:, 0] * sgn[:, 2] > 0, 1, 0))
-    k = np.arange(len(t))
-    o1, o2 = (lone + 1) % 3, (lone + 2) % 3
-    a = t[k, lone]
-    pts = []
-    for o in (o1, o2):
-        b = t[k, o]
-        w = dist[k, lone] / (dist[k, lone] - dist[k, o])
-        pts.append(a + w[:, None] * (b - a))
-    s0 = np.einsum("ki,ki->k", pts[0] - line_p, line_d)
-    s1 = np.einsum("ki,ki->k", pts[1] - line_p, line_d)
-    return np.stack([np.minimum(s0, s1), np.maximum(s0, s1)], axis=1)
+    """(k, 2) interval on the line (point, direction) of each triangle ``t`` (k, 3, 3) cut by the
+    other plane: its corners in that plane (distance 0) and the points where its edges cross it."""
+    lo = np.full(len(t), np.inf)
+    hi = np.full(len(t), -np.inf)
+    for i in range(3):
+        on = dist[:, i] == 0
+        s = np.einsum("ki,ki->k", t[:, i] - line_p, line_d)
+        lo = np.where(on, np.minimum(lo, s), lo)
+        hi = np.where(on, np.maximum(hi, s), hi)
+        j = (i + 1) % 3
+        cross = dist[:, i] * dist[:, j] < 0
+        w = np.where(cross, dist[:, i] / np.where(cross, dist[:, i] - dist[:, j], 1.0), 0.0)
+        pt = t[:, i] + w[:, None] * (t[:, j] - t[:, i])
+        s = np.einsum("ki,ki->k", pt - line_p, line_d)
+        lo = np.where(cross, np.minimum(lo, s), lo)
+        hi = np.where(cross, np.maximum(hi, s), hi)
+    return np.stack([lo, hi], axis=1)
 
 
 def crossing_pairs(state: FoldState, *, tol: Tolerances = DEFAULT_TOL, tris: tuple[FloatArray, IntArray] | None = None,
@@ -119,9 +124,9 @@ def crossing_pairs(state: FoldState, *, tol: Tolerances = DEFAULT_TOL, tris: tup
     def straddles(d: FloatArray) -> Any:
         return (d.max(axis=1) > 0) & (d.min(axis=1) < 0)
 
-    # a corner lying in the other plane (within tol.contact) counts as touching: a crossing there is
-    # seen at the neighbouring sampled states (a known limit of this test)
-    ok = straddles(db) & straddles(da) & np.all(db != 0, axis=1) & np.all(da != 0, axis=1)
+    # each triangle must strictly straddle the other's plane (a corner in the plane, e.g. a shared
+    # vertex, is one end of the intersection segment; a triangle only touching the plane never crosses)
+    ok = straddles(db) & straddles(da)
     if not ok.any():
         return []
     A, B, na, nb, da, db, ia, ib = A[ok], B[ok], na[ok], nb[ok], da[ok], db[ok], ia[ok], ib[ok]

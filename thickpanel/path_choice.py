@@ -34,8 +34,8 @@ from .errors import FoldError
 from .flat_start import second_order_starts
 from .loop_model import LoopModel, loop_model
 from .pattern import CreasePattern, cid
-from .poses import FoldPath
-from .symmetry import rotational_symmetry_none, symmetric_subspace
+from .poses import FoldPath, FoldState
+from .symmetry import rotational_symmetry, rotational_symmetry_none, symmetric_subspace
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray
 
@@ -74,7 +74,7 @@ class _Reduced:
             res = float(np.abs(r).max()) if len(r) else 0.0
             if res <= goal:
                 return y
-            if not np.isfinite(res) or res > 0.9 * prev and res > 1e3 * goal:
+            if not np.isfinite(res) or res > prev and res > 1e3 * goal:
                 return None
             prev = res
             dy, *_ = np.linalg.lstsq(A[:, free], -r, rcond=None)
@@ -97,7 +97,7 @@ def chosen_path(
     target_angles: FloatArray | None = None,
     n_states: int = 90,
     stop_at_crossing: bool = True,
-    keep_symmetry: bool | None = None,
+    keep_symmetry: bool | str | None = None,
     tol: Tolerances = DEFAULT_TOL,
 ) -> FoldPath:
     """Fold ``pattern`` from flat choosing among its freedoms by ``choose``.
@@ -115,9 +115,10 @@ def chosen_path(
         Sampled states evenly spaced in t (>= 2).
     stop_at_crossing : bool
         End the path at the first state where non-adjacent panels cross (zero thickness).
-    keep_symmetry : bool, optional
+    keep_symmetry : bool or "auto", optional
         Stay in the rotationally symmetric subspace (default: True for ``symmetric`` only); with
-        ``clearance`` or ``target`` it restricts their choice to symmetric motions.
+        ``clearance`` or ``target`` it restricts their choice to symmetric motions; ``"auto"`` does
+        so when the pattern has a rotational symmetry (``meta["subspace"]`` says which was used).
     tol : Tolerances
 
     Returns
@@ -139,6 +140,8 @@ def chosen_path(
     model = loop_model(pattern)
     if keep_symmetry is None:
         keep_symmetry = choose == "symmetric"
+    elif keep_symmetry == "auto":
+        keep_symmetry = choose == "symmetric" or rotational_symmetry(model, tol=tol).order >= 2
     if choose == "symmetric" and not keep_symmetry:
         raise FoldError("path option 'symmetric' keeps the symmetry by definition; keep_symmetry=False contradicts it")
     if keep_symmetry:
@@ -201,6 +204,8 @@ def chosen_path(
                     break
                 continue
             y_new, tangent = got
+            if level == 0.0:  # remember the start (d, e) for exact states before the first sample
+                meta["start"] = next((d, e) for d, e in starts if np.allclose(pinv @ d, tangent))
             y, level = y_new, level + step
             h = min(h * 1.5, np.deg2rad(5.0))
         if level < levels[i] - 1e-15:
@@ -217,7 +222,7 @@ def chosen_path(
                 meta["contact_depth_mm"] = hit[0].depth
                 stop = "contact"
                 meta["reachable"] = float(np.abs(states[-1].angles).max())
-                return FoldPath(tuple(states), stop, "t", meta)
+                return FoldPath(tuple(states), stop, "t", meta, refine=_refine)
         states.append(st)
     meta["reachable"] = float(np.abs(states[-1].angles).max())
     if len(states) == 1:
@@ -225,7 +230,36 @@ def chosen_path(
             f"pattern {pattern.name!r}: the {choose} path found a second-order start but no rigid state at "
             f"{np.rad2deg(levels[1]):.3g} deg inside the {subspace} subspace; reachable range 0..0 rad"
         )
-    return FoldPath(tuple(states), stop, "t", meta)
+    return FoldPath(tuple(states), stop, "t", meta, refine=_refine)
+
+
+def _refine(path: FoldPath, t: float) -> FoldState:
+    """Exact state between two samples of a chosen path: the interpolated angles corrected with the
+    largest fold held at ``t * target`` (inside the path's subspace); interpolated when that fails."""
+    from dataclasses import replace
+
+    pattern = path.states[0].pattern
+    model = loop_model(pattern)
+    tol = DEFAULT_TOL
+    sym = rotational_symmetry_none(model) if path.meta.get("subspace") == "full" else symmetric_subspace(model)
+    k = int(np.searchsorted(path.fractions, t))
+    s0, s1 = path.states[max(k - 1, 0)], path.states[min(k, len(path.states) - 1)]
+    w = 0.0 if s1.t == s0.t else (t - s0.t) / (s1.t - s0.t)
+    x = (1 - w) * s0.angles[model.var_crease] + w * s1.angles[model.var_crease]
+    j = int(np.argmax(np.abs(x)))
+    if abs(x[j]) > 0:
+        x = x * (t * float(path.meta["target"]) / abs(x[j]))
+    if s0.t == 0.0 and "start" in path.meta:  # off flat: the second-order start, not a chord from flat
+        d, e = path.meta["start"]
+        lev = t * float(path.meta["target"])
+        x = lev * d + lev * lev * e
+        j = int(np.argmax(np.abs(x)))
+        x = x * (lev / abs(x[j]))
+    red = _Reduced(model, sym.basis, tol)
+    y = red.correct(np.linalg.pinv(sym.basis) @ x, j)
+    if y is None:
+        return replace(path, refine=None).at(t)
+    return model.state(sym.basis @ y, t)
 
 
 def _rank_starts(dirs: tuple[FloatArray, ...], second: tuple[FloatArray, ...], goal: FloatArray | None,
