@@ -311,3 +311,43 @@ def test_stop_at_contact_before_the_first_state_says_flat():
     fold = next(c for c in res.checks if c["check"] == "fold reaches target")
     assert fold["verdict"] == "warn" and "reached 0.0 of 100 deg" in fold["detail"]
     assert "reached 100.0" not in str(res.stages)
+
+
+def test_closed_quad_ring_gets_knuckles_sized_from_its_play_budget():
+    # a closed 6-arm, 2-ring log-spiral quad ring of 1 m with 2 mm aluminium panels is locked; its
+    # joint-slack play per hinge (to 0.5 deg) sizes every knuckle's pin hole and axial clearance
+    pytest.importorskip("cadquery")
+    from thickpanel.build import run_pipeline
+    from thickpanel.design import loads_design
+
+    text = """name = "ring-play"
+[layout]
+family = "log-spiral"
+arms = 6
+rings = 2
+outer_diameter = 1000.0
+[panels]
+thickness = 2.0
+material = "al-6061-t6"
+[method]
+name = "plain"
+[hinge]
+style = "knuckle"
+play_mm = "slack"
+knuckles = 2
+knuckle_length_mm = 8.0
+[fold]
+target_deg = 0.5
+states = 4
+"""
+    res = run_pipeline(loads_design(text), stages=("pattern", "rigidity", "slack", "method", "solids"))
+    assert res.rigid.kind == "locked" and res.slack is not None and res.parts is not None
+    designs = list(res.parts.designs)
+    peak = dict(zip(res.slack.hinges, res.slack.play_mm.max(axis=0), strict=True))
+    sized = [d for d in designs if "play_needed_mm" in d.info]
+    assert len(sized) == len(designs) == 30
+    for d in sized:
+        assert d.info["play_needed_mm"] == pytest.approx(peak[f"C{d.crease:03d}"], abs=1e-12)
+        assert d.info["play_provided_mm"] >= d.info["play_needed_mm"] - 1e-12
+        assert d.info["play_along_provided_mm"] >= d.info["play_along_needed_mm"]
+    assert max(peak.values()) == pytest.approx(0.375, abs=0.001)

@@ -443,6 +443,13 @@ def _solids(run: _Run) -> None:
         run.skip("solids", "not available", why)
         return
     opts = dict(d.hinge.options)
+    if opts.get("play_mm") == "slack":  # play budget per hinge from the joint-slack stage (peak over the fold)
+        if res.slack is None:
+            raise DesignFileError("[hinge] play_mm = \"slack\" needs the joint-slack play of a locked pattern; "
+                                  "this pattern folds rigidly (or the slack stage did not run): give play_mm in mm")
+        peak = res.slack.play_mm.max(axis=0) if res.slack.play_mm.size else []
+        along = res.slack.along_mm.max(axis=0) if res.slack.along_mm.size else []
+        opts["play_mm"] = {h: (float(v), float(a)) for h, v, a in zip(res.slack.hinges, peak, along, strict=True)}
     styles_fn, _ = _api("hinges", "available_hinge_styles")
     if styles_fn is not None:
         styles = list(styles_fn())
