@@ -351,3 +351,45 @@ states = 4
         assert d.info["play_provided_mm"] >= d.info["play_needed_mm"] - 1e-12
         assert d.info["play_along_provided_mm"] >= d.info["play_along_needed_mm"]
     assert max(peak.values()) == pytest.approx(0.375, abs=0.001)
+
+
+# ------------------------------------------------------------------------ flat-folded targets
+def test_flat_folded_accordion_is_a_stack_of_its_panels():
+    # hand count: five 20 mm panels of a 100 mm strip fold onto one 20 x 100 mm panel, 5 layers,
+    # so 2 mm panels stack at least 10 mm high
+    from thickpanel.flat_fold import flat_folded_state
+    from thickpanel.layouts.classic import accordion
+
+    f = flat_folded_state(accordion(100.0, 20.0, 5))
+    assert f.footprint_mm == pytest.approx((100.0, 20.0), abs=1e-9)
+    assert f.layers == 5 and f.stack_height(2.0) == pytest.approx(10.0)
+    assert f.state.closure_error < 1e-9
+
+
+def test_flat_folded_miura_closes_with_kawasaki_and_maekawa_at_every_vertex():
+    # Kawasaki 1989: alternating sector sums vanish at every interior vertex; Maekawa/Justin:
+    # |#M - #V| = 2; the state with every crease at +-180 deg then closes (below 1e-9)
+    from thickpanel.flat_fold import flat_folded_state
+    from thickpanel.layouts.classic import miura_ori
+
+    cp = miura_ori(20.0, 10.0, 60.0, 4, 3)
+    m = loop_model(cp)
+    for i in range(len(m.loop_vertex)):
+        slots = m.slot_var[i][m.slot_var[i] >= 0]
+        u = m.slot_u[i, : len(slots), :2]
+        ang = np.arctan2(u[:, 1], u[:, 0])
+        sect = np.mod(np.roll(ang, -1) - ang, 2 * np.pi)
+        assert abs(sect[0::2].sum() - sect[1::2].sum()) < 1e-9
+        assert abs(int((m.signs[slots] > 0).sum()) - int((m.signs[slots] < 0).sum())) == 2
+    f = flat_folded_state(cp)
+    assert f.state.closure_error < 1e-9
+    assert np.allclose(np.abs(f.state.angles[m.var_crease]), np.pi)
+    ext = np.ptp(np.vstack([f.state.panel_vertices_3d(p) for p in range(cp.n_panels)]), axis=0)
+    assert min(ext) < 1e-9  # flat
+
+
+def test_spiral_hub_corners_forbid_a_flat_folded_state(flagship):
+    from thickpanel.flat_fold import flat_folded_state
+
+    with pytest.raises(FoldError, match=r"4 interior vertices fail Kawasaki or Maekawa \(V001, V003, V005, V007\)"):
+        flat_folded_state(flagship)
