@@ -7,12 +7,17 @@ predictor step inside the null space of the loop-closure Jacobian:
 * ``symmetric`` -- stay in the subspace of fold angles that keeps the pattern's rotational
   symmetry (:mod:`thickpanel.symmetry`), continuing the previous tangent;
 * ``clearance`` -- among the null-space directions (the continued tangent and its combinations
-  with each null-space basis vector), step along the one whose predicted state keeps the largest
-  smallest separation between non-adjacent panels at zero thickness (:mod:`thickpanel.crossings`);
+  with each null-space basis vector), step along the one whose corrected state keeps the largest
+  smallest separation between panels not joined by a hinge at zero thickness
+  (:func:`thickpanel.crossings.separation_score`, a sampled measure), never unfolding a crease
+  (beyond the sign slack below). Maximising separation alone can stall compaction: a path may fold
+  one ring of flaps flat while the rest opens little, so look at the folded extents too;
 * ``target`` -- the projection on the null space of the way to given target angles.
 
-The first step off flat uses a second-order feasible start direction (:mod:`thickpanel.flat_start`)
-inside the subspace, chosen by the same rule. Crease signs are judged over the finite step: a crease
+``keep_symmetry`` restricts ``clearance`` and ``target`` to the symmetric subspace as well. The
+first step off flat uses a second-order feasible start direction (:mod:`thickpanel.flat_start`)
+inside the subspace: those keeping the assignment's signs first, for ``target`` the one closest to
+the target. Crease signs are judged over the finite step: a crease
 may dip against its kind by at most ``_DIP`` times the step (third-order creases dip that way near
 flat) but no more, and never flip between steps once folded. After every sampled state the panels
 are checked for zero-thickness crossings; the path stops at the first state with one
