@@ -35,8 +35,9 @@ from .build_result import (
     default_out_dir,
 )
 from .design import Design, suggest
-from .envelope import diameter, packing_ratio, principal_frame
+from .envelope import diameter
 from .errors import DesignFileError, HingeError, ThickpanelError
+from .figures import array_figures, clearance_figures
 from .outputs import prepare_out_dir, remove_outputs
 
 log = logging.getLogger("thickpanel")
@@ -118,6 +119,8 @@ def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: 
         _method(run, cp, thickness, target)
     if "clearance" in want:
         _clearance(run)
+    if "method" in want:
+        _hinge_reach(res)
     _envelope(res)
     if "solids" in want:
         _solids(run)
@@ -149,7 +152,7 @@ def _foldability(run: _Run, cp: Any) -> None:
     fn, why = _api("foldability", "check_foldability")
     if fn is None:
         run.skip("foldability", "not available", why)
-        res.check("flat-foldable vertices", "n/a", why)
+        res.check("flat-foldable vertices", "could not run", why)
         return
     with run.stage("foldability") as rec:
         rep = fn(cp)
@@ -170,7 +173,7 @@ def _rigidity(run: _Run, cp: Any) -> None:
     fn, why = _api("kinematics", "rigid_foldability")
     if fn is None:
         run.skip("rigidity", "not available", why)
-        res.check("rigid-foldable", "n/a", why)
+        res.check("rigid-foldable", "could not run", why)
         return
     with run.stage("rigidity") as rec:
         v = fn(cp)
@@ -219,7 +222,7 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
     fn, why = _api("kinematics", "fold_path")
     if fn is None:
         run.skip("fold path", "not available", why)
-        res.check("fold path", "n/a", why)
+        res.check("fold path", "could not run", why)
         return
     kw: dict[str, Any] = {"target": target, "n_states": d.fold.states}
     if run.progress is not None:  # the solver calls stop_when on every sampled state: a progress tick
@@ -268,7 +271,7 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
     make, why2 = _api("thickness", "make_plan")
     if make is None or advise is None:
         run.skip("method", "not available", why or why2)
-        res.check("thickness method", "n/a", why or why2)
+        res.check("thickness method", "could not run", why or why2)
         return
     with run.stage("method") as rec:
         built: dict[str, Any] = {}  # plans advice built with default options, reused below
@@ -276,7 +279,7 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         res.advice = advice
         names = [a.method for a in advice]
         for a in advice:
-            res.check(f"method {a.method}", "info" if a.applies else "n/a",
+            res.check(f"method {a.method}", "info" if a.applies else "does not apply",
                       ("applies" if a.applies else "does not apply") + (f": {a.reason}" if a.reason else ""))
         name = d.method.name
         if name == "auto":
@@ -348,36 +351,39 @@ def _clearance(run: _Run) -> None:
     if run.blocked or res.plan is None or res.path is None:
         why = run.blocked or ("no fold path" if res.path is None else "no thickness plan")
         run.skip("clearance", "blocked", why)
-        res.check("clearance over the fold", "warn", f"not proven: {why}")
+        res.check("clearance over the fold", "not proven", f"the sweep did not run: {why}")
         return
     fn, why = _api("clearance", "clearance")
     if fn is None:
         run.skip("clearance", "not available", why)
-        res.check("clearance", "n/a", why)
+        res.check("clearance", "could not run", why)
         return
     with run.stage("clearance") as rec:
         # measure pairs out to a few slab thicknesses so the report quotes real distances, not only
         # the bound "at least the margin" (the sweep's own default margin is one thickness)
         margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
-        rep = fn(res.plan, res.path, margin=margin)
+        extra = _hardware(res)
+        rec["note"] = ""
+        rep = fn(res.plan, res.path, margin=margin, extra_pieces=extra or None)
         first = getattr(rep, "first_contact", None)
         if d.fold.stop_at_contact and first:
             rep = _stop_at_contact(res, fn, rep, float(first[0]))
         res.clearance = rep
-        mc = float(rep.min_clearance)
-        res.metrics["min_clearance_mm"] = mc
-        where = getattr(rep, "where", None)
-        if getattr(rep, "lower_bound", False):
-            res.metrics["min_clearance_lower_bound"] = True
-            rec["note"] = f"minimum at least {mc:.3f} mm (no two slabs came within the search margin)"
-        else:
-            rec["note"] = f"minimum {mc:.3f} mm" + (f" {_where_text(where)}" if where else "")
+        fig = clearance_figures(rep)
+        res.metrics.update(fig)
+        rec["note"] = "minimum " + fig["min_clearance_text"]
         first = getattr(rep, "first_contact", None)
         if first:
             res.metrics["first_contact"] = {"t": float(first[0]), "pair": list(first[1])}
-        ok = mc >= d.checks.min_clearance
-        res.check("clearance over the fold", "pass" if ok else "fail",
-                  rec["note"] + f" (required >= {d.checks.min_clearance:g} mm)")
+        mc, need = float(rep.min_clearance), d.checks.min_clearance
+        what = "slabs and hinge hardware" if extra else "slabs"
+        detail = rec["note"] + f" ({what}; required >= {need:g} mm)"
+        if mc >= need:
+            res.check("clearance over the fold", "pass", detail)
+        elif fig["min_clearance_lower_bound"]:  # a bound below the requirement proves nothing
+            res.check("clearance over the fold", "not proven", detail)
+        else:
+            res.check("clearance over the fold", "fail", detail)
 
 
 def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
@@ -392,7 +398,30 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
               f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
-    return sweep(res.plan, res.path, margin=rep.margin)
+    return sweep(res.plan, res.path, margin=rep.margin, extra_pieces=_hardware(res) or None)
+
+
+def _hardware(res: BuildResult) -> list[Any]:
+    """Convex pieces of the design's hinge hardware (barrels, pins, boxes) for the sweep; empty when
+    the hinge style adds none or its recipes cannot be made (the solids stage then says why)."""
+    d = res.design
+    get_style, _ = _api("hinges", "get_hinge_style")
+    design_fn, _ = _api("hinges.plan_designs", "design_hinges")
+    pieces_fn, _ = _api("hardware", "hardware_pieces")
+    if get_style is None or design_fn is None or pieces_fn is None or not res.plan.hinges:
+        return []
+    cached = res.plan.meta.get(("hardware", d.hinge.style, repr(sorted(d.hinge.options.items()))))
+    if cached is not None:
+        return list(cached)
+    try:
+        style = get_style(d.hinge.style, **dict(d.hinge.options))
+        designs = design_fn(res.plan, style, material=d.panels.material or None)
+        pieces = list(pieces_fn(res.plan, designs))
+    except (ThickpanelError, TypeError, ValueError) as exc:
+        log.info("hinge hardware left out of the clearance sweep: %s", exc)
+        return []
+    res.plan.meta[("hardware", d.hinge.style, repr(sorted(d.hinge.options.items())))] = pieces
+    return pieces
 
 
 def _where_text(where: Any) -> str:
@@ -404,17 +433,51 @@ def _where_text(where: Any) -> str:
 
 
 def _envelope(res: BuildResult) -> None:
-    """Deployed and stowed boxes (mm, principal axes) of the slabs, or of the bare panels."""
-    for label, t in (("deployed", 0.0), ("stowed", 1.0)):
-        got = res.poses_at(t)
-        if got is None:
-            return
-        pts = principal_frame(res.corner_points(got[0]))
-        lo, hi = pts.min(axis=0), pts.max(axis=0)
-        res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
-        res.metrics["envelope_from"] = got[1]
-    res.metrics["packing_ratio"] = packing_ratio(res.metrics["deployed_area_mm2"], res.metrics["stowed_envelope_mm"])
+    """Deployed (t = 0) and stowed (last state of the fold) figures, once, for every output."""
+    if res.plan is not None:
+        res.hardware = _hardware(res)
     res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
+    ts = res.stowed_t()
+    if ts is None:
+        return
+    got = res.poses_at(ts)
+    res.metrics.update(array_figures(res.state_figures(0.0), res.state_figures(ts), res.metrics["deployed_area_mm2"]))
+    res.metrics["envelope_from"] = got[1] if got else None
+
+
+def _hinge_reach(res: BuildResult) -> None:
+    """Each hinge line's fold range against its own crease's fold in the stowed state."""
+    plan = res.plan
+    if plan is None or not plan.hinges:
+        return
+    from .pattern import cid
+
+    ts = res.stowed_t()
+    angles = np.asarray(res.path.at(ts).angles) if res.path is not None and ts is not None else None
+    rows = []
+    for h in plan.hinges:
+        lo, hi = (float(x) for x in h.fold_range)
+        if angles is not None:
+            need = float(angles[h.crease])
+        else:  # no fold path: the pattern's stowed (target) angle of the crease
+            ta = plan.pattern.target_angles
+            need = float(ta[h.crease]) if h.crease < len(ta) and math.isfinite(float(ta[h.crease])) \
+                else math.copysign(float(plan.target_fold), hi if abs(hi) >= abs(lo) else lo)
+        eps = 1e-9 * max(1.0, abs(need))
+        ok = lo - eps <= need <= hi + eps
+        rows.append({"crease": cid(h.crease), "face": h.face, "gap_mm": float(h.gap),
+                     "usable_mm": float(h.usable_length), "range_deg": [_deg(lo), _deg(hi)],
+                     "stowed_fold_deg": _deg(need), "verdict": "pass" if ok else "fail"})
+    res.hinge_rows = rows
+    bad = [r["crease"] for r in rows if r["verdict"] == "fail"]
+    where = "in the stowed state" if angles is not None else "at their target angles"
+    if bad:
+        res.check("hinge lines reach their stowed fold", "fail",
+                  f"{len(bad)} of {len(rows)} hinge lines cannot reach their crease's fold {where} without their "
+                  f"slabs meeting: {', '.join(bad[:8])}" + (" ..." if len(bad) > 8 else ""))
+    else:
+        res.check("hinge lines reach their stowed fold", "pass",
+                  f"all {len(rows)} hinge lines reach their crease's fold {where}")
 
 
 def _solids(run: _Run) -> None:
@@ -516,13 +579,29 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
         for i, t in enumerate(states):
             if run.progress:
                 run.progress("exports", i, len(states))
-            state = res.path.at(float(t)) if res.path is not None else None
+            last = res.stowed_t()
+            state = res.path.at(min(float(t), last if last is not None else 1.0)) if res.path is not None else None
             sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
             paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance,
-                       path=res.path, scope="state", **shop)
+                       path=res.path, scope="state", figures=_export_figures(res, float(t)), **shop)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
         rec["note"] = f"{n} files in {res.out_dir}{note}"
+
+
+def _export_figures(res: BuildResult, t: float) -> dict[str, Any]:
+    """The build's figures for a ``metrics.json`` at fold fraction ``t``: the array figures of the
+    summary (same values) and the figures of that state."""
+    keys = ("deployed_area_mm2", "deployed_diameter_mm", "envelope", "cylinder", "deployed_envelope_mm",
+            "stowed_envelope_mm", "deployed_cylinder_mm", "stowed_cylinder_mm", "stowed_state_t",
+            "stowed_fold_deg", "packing_ratio", "min_clearance_mm", "min_clearance_lower_bound",
+            "min_clearance_text", "min_clearance_where")
+    out = {k: res.metrics[k] for k in keys if k in res.metrics}
+    st = res.state_figures(t)
+    if st is not None:
+        out.update(st)
+    out["verdict"] = res.verdict
+    return out
 
 
 def run_check(design: Design, *, progress: Progress | None = None) -> dict[str, Any]:

@@ -173,6 +173,9 @@ class Piece:
     edges : (e, 3) float
         Distinct edge directions (up to sign).
     label : str
+    joins : tuple of int
+        Panels (besides ``owner``) this piece is never compared with: hinge hardware sits in the
+        notches of the two panels it joins, so its fit there is the hinge style's own check.
     """
 
     owner: int
@@ -181,6 +184,7 @@ class Piece:
     normals: FloatArray
     edges: FloatArray
     label: str = ""
+    joins: tuple[int, ...] = ()
 
 
 def _unique_dirs(d: FloatArray, eps: float) -> FloatArray:
@@ -197,7 +201,8 @@ def _unique_dirs(d: FloatArray, eps: float) -> FloatArray:
 
 
 def make_piece(
-    owner: int, normals: FloatArray, offsets: FloatArray, *, label: str = "", tol: Tolerances = DEFAULT_TOL
+    owner: int, normals: FloatArray, offsets: FloatArray, *, label: str = "", joins: tuple[int, ...] = (),
+    tol: Tolerances = DEFAULT_TOL,
 ) -> Piece:
     """Convex piece from half-spaces ``normals @ x <= offsets`` (mm); raises when it is empty."""
     verts = halfspace_vertices(np.asarray(normals, float), np.asarray(offsets, float), eps=tol.merge)
@@ -224,18 +229,20 @@ def make_piece(
     e_dirs = np.cross(fn[f_idx[sharp]], fn[g_idx[sharp]])
     edges_u = _unique_dirs(np.array(e_dirs).reshape(-1, 3), tol.angle * 1e3)
     # orient triangles consistently is not needed for distances
-    return Piece(owner, verts, tris.astype(np.int64), normals_u, edges_u, label)
+    return Piece(owner, verts, tris.astype(np.int64), normals_u, edges_u, label, tuple(int(j) for j in joins))
 
 
-def piece_from_points(owner: int, points: FloatArray, *, label: str = "", tol: Tolerances = DEFAULT_TOL) -> Piece:
-    """Convex piece as the hull of ``points`` ((n, 3) float, mm, owner's flat frame)."""
+def piece_from_points(owner: int, points: FloatArray, *, label: str = "", joins: tuple[int, ...] = (),
+                      tol: Tolerances = DEFAULT_TOL) -> Piece:
+    """Convex piece as the hull of ``points`` ((n, 3) float, mm, owner's flat frame); ``joins`` as
+    in :class:`Piece`."""
     pts = np.asarray(points, dtype=float)
     try:
         hull = ConvexHull(pts)
     except (QhullError, ValueError):
         raise ThicknessError(f"{label or 'extra piece'} of owner {owner} has no volume") from None
     eq = hull.equations
-    return make_piece(owner, eq[:, :3], -eq[:, 3], label=label, tol=tol)
+    return make_piece(owner, eq[:, :3], -eq[:, 3], label=label, joins=joins, tol=tol)
 
 
 @dataclass(frozen=True)
@@ -249,6 +256,8 @@ class PieceArrays:
     normals : (N, F, 3) float
     edges : (N, E, 3) float
     pieces : tuple of Piece
+    joins : (N, J) int
+        Each piece's ``joins`` padded with -1 (J >= 1).
     """
 
     owner: IntArray
@@ -256,6 +265,13 @@ class PieceArrays:
     normals: FloatArray
     edges: FloatArray
     pieces: tuple[Piece, ...]
+    joins: IntArray
+
+    def skipped(self, i: IntArray, j: IntArray) -> IntArray:
+        """(k,) bool: piece pairs ``(i, j)`` never compared (same owner, or one joins the other's owner)."""
+        oi, oj = self.owner[i], self.owner[j]
+        return np.asarray((oi == oj) | (self.joins[i] == oj[:, None]).any(axis=1)
+                          | (self.joins[j] == oi[:, None]).any(axis=1))
 
 
 def _pad(rows: list[FloatArray], width: int) -> FloatArray:
@@ -272,12 +288,17 @@ def pack_pieces(pieces: list[Piece]) -> PieceArrays:
     f = max(len(p.normals) for p in pieces)
     e = max(max(len(p.edges) for p in pieces), 1)
     edges = [p.edges if len(p.edges) else np.array([[1.0, 0.0, 0.0]]) for p in pieces]
+    nj = max(max(len(p.joins) for p in pieces), 1)
+    joins = np.full((len(pieces), nj), -1, dtype=np.int64)
+    for k, p in enumerate(pieces):
+        joins[k, : len(p.joins)] = p.joins
     return PieceArrays(
         owner=np.array([p.owner for p in pieces], dtype=np.int64),
         verts=_pad([p.vertices for p in pieces], v),
         normals=_pad([p.normals for p in pieces], f),
         edges=_pad(edges, e),
         pieces=tuple(pieces),
+        joins=joins,
     )
 
 
