@@ -525,7 +525,7 @@ def _solids(run: _Run) -> None:
         res.metrics["total_volume_mm3"] = float(sum(vols))
         masses: list[Any] = [_mass(p) for p in plist]
         if masses and all(m is not None for m in masses):
-            res.metrics["total_mass_g"] = float(np.sum(np.asarray(masses, dtype=float)))
+            res.metrics["total_mass_g"] = round(float(np.sum(np.asarray(masses, dtype=float))), 4)
         res.check("solids valid", "pass", rec["note"])
 
 
@@ -592,7 +592,8 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
 def _export_figures(res: BuildResult, t: float) -> dict[str, Any]:
     """The build's figures for a ``metrics.json`` at fold fraction ``t``: the array figures of the
     summary (same values) and the figures of that state."""
-    keys = ("deployed_area_mm2", "deployed_diameter_mm", "envelope", "cylinder", "deployed_envelope_mm",
+    keys = ("panels", "parts", "total_volume_mm3", "total_mass_g", "deployed_area_mm2", "deployed_diameter_mm",
+            "envelope", "cylinder", "deployed_envelope_mm",
             "stowed_envelope_mm", "deployed_cylinder_mm", "stowed_cylinder_mm", "stowed_state_t",
             "stowed_fold_deg", "packing_ratio", "min_clearance_mm", "min_clearance_lower_bound",
             "min_clearance_text", "min_clearance_where")
