@@ -23,6 +23,7 @@ from typing import Any
 
 import numpy as np
 
+from .build_figures import export_figures, hardware_for, hinge_reach
 from .build_result import (
     ORDER,
     SLACK_MAX_DEG,
@@ -120,7 +121,7 @@ def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: 
     if "clearance" in want:
         _clearance(run)
     if "method" in want:
-        _hinge_reach(res)
+        hinge_reach(res)
     _envelope(res)
     if "solids" in want:
         _solids(run)
@@ -362,7 +363,7 @@ def _clearance(run: _Run) -> None:
         # measure pairs out to a few slab thicknesses so the report quotes real distances, not only
         # the bound "at least the margin" (the sweep's own default margin is one thickness)
         margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
-        extra = _hardware(res)
+        extra = hardware_for(res)
         rec["note"] = ""
         rep = fn(res.plan, res.path, margin=margin, extra_pieces=extra or None)
         first = getattr(rep, "first_contact", None)
@@ -398,30 +399,7 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
               f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
-    return sweep(res.plan, res.path, margin=rep.margin, extra_pieces=_hardware(res) or None)
-
-
-def _hardware(res: BuildResult) -> list[Any]:
-    """Convex pieces of the design's hinge hardware (barrels, pins, boxes) for the sweep; empty when
-    the hinge style adds none or its recipes cannot be made (the solids stage then says why)."""
-    d = res.design
-    get_style, _ = _api("hinges", "get_hinge_style")
-    design_fn, _ = _api("hinges.plan_designs", "design_hinges")
-    pieces_fn, _ = _api("hardware", "hardware_pieces")
-    if get_style is None or design_fn is None or pieces_fn is None or not res.plan.hinges:
-        return []
-    cached = res.plan.meta.get(("hardware", d.hinge.style, repr(sorted(d.hinge.options.items()))))
-    if cached is not None:
-        return list(cached)
-    try:
-        style = get_style(d.hinge.style, **dict(d.hinge.options))
-        designs = design_fn(res.plan, style, material=d.panels.material or None)
-        pieces = list(pieces_fn(res.plan, designs))
-    except (ThickpanelError, TypeError, ValueError) as exc:
-        log.info("hinge hardware left out of the clearance sweep: %s", exc)
-        return []
-    res.plan.meta[("hardware", d.hinge.style, repr(sorted(d.hinge.options.items())))] = pieces
-    return pieces
+    return sweep(res.plan, res.path, margin=rep.margin, extra_pieces=hardware_for(res) or None)
 
 
 def _where_text(where: Any) -> str:
@@ -435,7 +413,7 @@ def _where_text(where: Any) -> str:
 def _envelope(res: BuildResult) -> None:
     """Deployed (t = 0) and stowed (last state of the fold) figures, once, for every output."""
     if res.plan is not None:
-        res.hardware = _hardware(res)
+        res.hardware = hardware_for(res)
     res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
     ts = res.stowed_t()
     if ts is None:
@@ -443,41 +421,6 @@ def _envelope(res: BuildResult) -> None:
     got = res.poses_at(ts)
     res.metrics.update(array_figures(res.state_figures(0.0), res.state_figures(ts), res.metrics["deployed_area_mm2"]))
     res.metrics["envelope_from"] = got[1] if got else None
-
-
-def _hinge_reach(res: BuildResult) -> None:
-    """Each hinge line's fold range against its own crease's fold in the stowed state."""
-    plan = res.plan
-    if plan is None or not plan.hinges:
-        return
-    from .pattern import cid
-
-    ts = res.stowed_t()
-    angles = np.asarray(res.path.at(ts).angles) if res.path is not None and ts is not None else None
-    rows = []
-    for h in plan.hinges:
-        lo, hi = (float(x) for x in h.fold_range)
-        if angles is not None:
-            need = float(angles[h.crease])
-        else:  # no fold path: the pattern's stowed (target) angle of the crease
-            ta = plan.pattern.target_angles
-            need = float(ta[h.crease]) if h.crease < len(ta) and math.isfinite(float(ta[h.crease])) \
-                else math.copysign(float(plan.target_fold), hi if abs(hi) >= abs(lo) else lo)
-        eps = 1e-9 * max(1.0, abs(need))
-        ok = lo - eps <= need <= hi + eps
-        rows.append({"crease": cid(h.crease), "face": h.face, "gap_mm": float(h.gap),
-                     "usable_mm": float(h.usable_length), "range_deg": [_deg(lo), _deg(hi)],
-                     "stowed_fold_deg": _deg(need), "verdict": "pass" if ok else "fail"})
-    res.hinge_rows = rows
-    bad = [r["crease"] for r in rows if r["verdict"] == "fail"]
-    where = "in the stowed state" if angles is not None else "at their target angles"
-    if bad:
-        res.check("hinge lines reach their stowed fold", "fail",
-                  f"{len(bad)} of {len(rows)} hinge lines cannot reach their crease's fold {where} without their "
-                  f"slabs meeting: {', '.join(bad[:8])}" + (" ..." if len(bad) > 8 else ""))
-    else:
-        res.check("hinge lines reach their stowed fold", "pass",
-                  f"all {len(rows)} hinge lines reach their crease's fold {where}")
 
 
 def _solids(run: _Run) -> None:
@@ -583,26 +526,10 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
             state = res.path.at(min(float(t), last if last is not None else 1.0)) if res.path is not None else None
             sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
             paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance,
-                       path=res.path, scope="state", figures=_export_figures(res, float(t)), **shop)
+                       path=res.path, scope="state", figures=export_figures(res, float(t)), **shop)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
         rec["note"] = f"{n} files in {res.out_dir}{note}"
-
-
-def _export_figures(res: BuildResult, t: float) -> dict[str, Any]:
-    """The build's figures for a ``metrics.json`` at fold fraction ``t``: the array figures of the
-    summary (same values) and the figures of that state."""
-    keys = ("panels", "parts", "total_volume_mm3", "total_mass_g", "deployed_area_mm2", "deployed_diameter_mm",
-            "envelope", "cylinder", "deployed_envelope_mm",
-            "stowed_envelope_mm", "deployed_cylinder_mm", "stowed_cylinder_mm", "stowed_state_t",
-            "stowed_fold_deg", "packing_ratio", "min_clearance_mm", "min_clearance_lower_bound",
-            "min_clearance_text", "min_clearance_where")
-    out = {k: res.metrics[k] for k in keys if k in res.metrics}
-    st = res.state_figures(t)
-    if st is not None:
-        out.update(st)
-    out["verdict"] = res.verdict
-    return out
 
 
 def run_check(design: Design, *, progress: Progress | None = None) -> dict[str, Any]:

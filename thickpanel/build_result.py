@@ -22,7 +22,7 @@ import numpy as np
 from .design import Design
 from .errors import DesignFileError, ExportError, PatternError, ThickpanelError
 
-__all__ = ["BuildResult", "Progress", "default_out_dir", "ORDER", "VERDICTS", "overall_verdict"]
+__all__ = ["BuildResult", "Progress", "default_out_dir", "ORDER", "VERDICTS", "overall_verdict", "api"]
 
 log = logging.getLogger("thickpanel")
 
@@ -198,8 +198,9 @@ def _jsonable(x: Any) -> Any:
     return x
 
 
-def _api(module: str, name: str) -> tuple[Any, str]:
-    """``(callable, "")`` or ``(None, reason)`` when ``thickpanel.<module>.<name>`` is missing."""
+def api(module: str, name: str) -> tuple[Any, str]:
+    """``(callable, "")`` or ``(None, reason)`` when ``thickpanel.<module>.<name>`` is missing
+    (``hinges...`` modules are looked up as they are named)."""
     full = module if module.startswith("hinges") else f"thickpanel.{module}"
     try:
         mod = importlib.import_module(full)
@@ -213,6 +214,9 @@ def _api(module: str, name: str) -> tuple[Any, str]:
     if fn is None:
         return None, f"{full}.{name} is not available in this installation"
     return fn, ""
+
+
+_api = api  # the name build.py has always used
 
 
 def default_out_dir(design: Design) -> Path:
