@@ -12,6 +12,7 @@ import numpy as np
 
 from .build_result import BuildResult, api
 from .errors import ThickpanelError
+from .tolerances import DEFAULT_TOL
 
 __all__ = ["hardware_for", "hinge_reach", "export_figures", "EXPORT_KEYS"]
 
@@ -69,7 +70,7 @@ def hinge_reach(res: BuildResult) -> None:
             ta = plan.pattern.target_angles
             need = float(ta[h.crease]) if h.crease < len(ta) and math.isfinite(float(ta[h.crease])) \
                 else math.copysign(float(plan.target_fold), hi if abs(hi) >= abs(lo) else lo)
-        eps = 1e-9 * max(1.0, abs(need))
+        eps = DEFAULT_TOL.angle  # bevels sized for a crease's stowed fold reach it exactly
         ok = lo - eps <= need <= hi + eps
         rows.append({"crease": cid(h.crease), "face": h.face, "gap_mm": float(h.gap),
                      "usable_mm": float(h.usable_length), "range_deg": [_deg(lo), _deg(hi)],
