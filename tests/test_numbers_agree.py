@@ -115,6 +115,13 @@ def test_report_json_and_metrics_agree(built):
     assert _numbers(stowed) == pytest.approx(m["stowed_envelope_mm"], rel=5e-4)
     assert _numbers(rows["deployed envelope (x, y, z box)"]) == pytest.approx(m["deployed_envelope_mm"], rel=5e-4)
     assert float(rows["packing ratio"]) == pytest.approx(m["packing_ratio"], rel=5e-3)
+    if name == "reflector-backing":
+        # the deployed sheet is a 240 mm square drawn along the axes (issue 11: it was 337 x 337)
+        assert m["deployed_envelope_mm"][:2] == pytest.approx([240.0, 240.0], abs=1e-9)
+    if name == "sun-shade-disc":
+        # rim: regular octagon of circumradius 600 mm (CRC Standard Mathematical Tables), 2 mm panels
+        assert m["deployed_cylinder_mm"] == pytest.approx([1200.0, 2.0], abs=1e-4)
+        assert m["stowed_cylinder_mm"][0] >= max(m["stowed_envelope_mm"][:2]) - 1e-6
 
 
 def test_no_pass_beside_a_failing_row(built):
