@@ -364,7 +364,6 @@ def _clearance(run: _Run) -> None:
         # the bound "at least the margin" (the sweep's own default margin is one thickness)
         margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
         extra = hardware_for(res)
-        rec["note"] = ""
         rep = fn(res.plan, res.path, margin=margin, extra_pieces=extra or None)
         first = getattr(rep, "first_contact", None)
         if d.fold.stop_at_contact and first:
@@ -400,14 +399,6 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
               f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
     return sweep(res.plan, res.path, margin=rep.margin, extra_pieces=hardware_for(res) or None)
-
-
-def _where_text(where: Any) -> str:
-    try:
-        (a, b), t = where
-        return f"between {a} and {b} at t = {float(t):.3f}"
-    except (TypeError, ValueError):
-        return f"at {where}"
 
 
 def _envelope(res: BuildResult) -> None:

@@ -133,22 +133,6 @@ class BuildResult:
             return float(row.max()) if row.size else 0.0
         return math.nan
 
-    def corner_points(self, poses: np.ndarray) -> np.ndarray:
-        """(k, 3) corners of every slab (or bare panel) placed by ``poses``, mm."""
-        out = []
-        if self.plan is None:
-            for p in self.pattern.panels:
-                poly = self.pattern.panel_polygon(p.index)
-                h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
-                out.append((h @ poses[p.index].T)[:, :3])
-            return np.vstack(out)
-        for sl in self.plan.slabs:
-            poly = sl.polygon_array()
-            for z in (sl.z0, sl.z1):
-                h = np.column_stack([poly, np.full(len(poly), z), np.ones(len(poly))])
-                out.append((h @ poses[sl.panel].T)[:, :3])
-        return np.vstack(out)
-
     @property
     def ok(self) -> bool:
         """True when no check failed."""
