@@ -120,8 +120,11 @@ def test_report_json_and_metrics_agree(built):
         assert m["deployed_envelope_mm"][:2] == pytest.approx([240.0, 240.0], abs=1e-9)
     if name == "sun-shade-disc":
         # rim: regular octagon of circumradius 600 mm (CRC Standard Mathematical Tables), 2 mm panels
-        assert m["deployed_cylinder_mm"] == pytest.approx([1200.0, 2.0], abs=1e-4)
-        assert m["stowed_cylinder_mm"][0] >= max(m["stowed_envelope_mm"][:2]) - 1e-6
+        flat = next(met for met in files.values() if met["state_t"] == 0.0)
+        assert flat["cylinder_mm"] == pytest.approx([1200.0, 2.0], abs=1e-4)
+        stowed_file = next(met for met in files.values() if met["state_t"] == m["stowed_state_t"])
+        assert stowed_file["cylinder_mm"] == [m["stowed_diameter_mm"], m["stowed_height_mm"]]
+        assert m["stowed_diameter_mm"] >= max(m["stowed_envelope_mm"][:2]) - 1e-6
 
 
 def test_no_pass_beside_a_failing_row(built):

@@ -357,7 +357,7 @@ def _clearance(run: _Run) -> None:
     fn, why = _api("clearance", "clearance")
     if fn is None:
         run.skip("clearance", "not available", why)
-        res.check("clearance", "could not run", why)
+        res.check("clearance over the fold", "could not run", why)
         return
     with run.stage("clearance") as rec:
         # measure pairs out to a few slab thicknesses so the report quotes real distances, not only

@@ -165,9 +165,12 @@ def _figure_lines(m: dict[str, Any]) -> list[str]:
         out.append(f"minimum clearance: {m['min_clearance_text']}")
     for key, label in (("deployed_envelope_mm", "deployed envelope (x, y, z box)"),
                        ("stowed_envelope_mm", f"stowed envelope (x, y, z box) at t = {m.get('stowed_state_t')}"),
-                       ("stowed_cylinder_mm", "stowed cylinder about the hub axis (diameter, height)")):
+                       ):
         if m.get(key):
             out.append(f"{label}: " + " x ".join(f"{x:.4g}" for x in m[key]) + " mm")
+    if m.get("stowed_diameter_mm") is not None:
+        out.append(f"stowed cylinder about the hub axis: diameter {m['stowed_diameter_mm']:.4g} mm, height "
+                   f"{m['stowed_height_mm']:.4g} mm")
     if m.get("packing_ratio"):
         out.append(f"packing ratio: {m['packing_ratio']:.3g}")
     return out

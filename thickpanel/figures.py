@@ -17,8 +17,12 @@ Figures of one fold state (keys of :func:`state_figures`):
   the hub axis, mm.
 
 Array figures (:func:`array_figures`): ``deployed_*`` from the deployed state (t = 0) and
-``stowed_*`` only from the stowed state (the last state of the fold path), the packing ratio
-(deployed panel area over the product of the two largest stowed box extents) and the clearance.
+``stowed_*`` only from the stowed state (the last state of the fold path): the boxes
+``deployed_envelope_mm`` / ``stowed_envelope_mm``, for arrays with a hub ``stowed_diameter_mm`` and
+``stowed_height_mm`` (the stowed state's enclosing cylinder about the hub axis; any layout with a
+hub axis reports these two names), the packing ratio (deployed panel area over the product of the
+two largest stowed box extents) and the clearance. ``deployed_diameter_mm`` (the summary's) is the
+largest distance between two vertices of the flat sheet.
 """
 
 from __future__ import annotations
@@ -152,12 +156,12 @@ def array_figures(deployed: dict[str, Any] | None, stowed: dict[str, Any] | None
         if f is None:
             continue
         out[f"{label}_envelope_mm"] = list(f["box_mm"])
-        if "cylinder_mm" in f:
-            out["cylinder"] = CYLINDER_LABEL
-            out[f"{label}_cylinder_mm"] = list(f["cylinder_mm"])
         if label == "stowed":
             out["stowed_state_t"] = f["state_t"]
             out["stowed_fold_deg"] = f["fold_deg"]
+            if "cylinder_mm" in f:
+                out["cylinder"] = CYLINDER_LABEL
+                out["stowed_diameter_mm"], out["stowed_height_mm"] = f["cylinder_mm"]
     if stowed is not None:
         pr = packing_ratio(area_mm2, stowed["box_mm"])
         out["packing_ratio"] = None if pr is None else round(pr, 6)

@@ -309,8 +309,9 @@ def _key_figures(res: Any, m: dict[str, Any]) -> str:
         ["minimum clearance", m.get("min_clearance_text") or "-"],
         ["deployed envelope (x, y, z box)", fmt("deployed_envelope_mm", "mm")],
         [f"stowed envelope (x, y, z box) at t = {fmt('stowed_state_t')}", fmt("stowed_envelope_mm", "mm")],
-        *([["stowed cylinder about the hub axis (diameter, height)", fmt("stowed_cylinder_mm", "mm")]]
-          if m.get("stowed_cylinder_mm") else []),
+        *([["stowed cylinder about the hub axis (diameter, height)",
+            f"{fmt('stowed_diameter_mm')} x {fmt('stowed_height_mm', 'mm')}"]]
+          if m.get("stowed_diameter_mm") is not None else []),
         ["packing ratio", fmt("packing_ratio", "", 3)],
         ["parts", fmt("parts")],
         ["total mass", fmt("total_mass_g", "g")],
@@ -390,8 +391,10 @@ def render_report(res: Any) -> str:
         parts.append(f'<p class="note">{_e(m.get("envelope", "box"))}: every slab and piece of hinge hardware, '
                      "the fold's fixed panel where the design draws it.</p>")
         parts.append(_table(["state", "x (mm)", "y (mm)", "z (mm)"], env_rows, num=(1, 2, 3)))
-        cyl = [[lab, *m[k]] for k, lab in (("deployed_cylinder_mm", "deployed"), ("stowed_cylinder_mm", "stowed"))
-               if m.get(k)]
+        dep = res.state_figures(0.0) if hasattr(res, "state_figures") else None  # the build's t = 0 figures
+        cyl = ([["deployed (t = 0)", *dep["cylinder_mm"]]] if dep and "cylinder_mm" in dep else []) + \
+            ([[f"stowed (t = {m.get('stowed_state_t')})", m["stowed_diameter_mm"], m["stowed_height_mm"]]]
+             if m.get("stowed_diameter_mm") is not None else [])
         if cyl:
             parts.append(f'<p class="note">{_e(m.get("cylinder", ""))}.</p>')
             parts.append(_table(["state", "diameter (mm)", "height (mm)"], cyl, num=(1, 2)))
