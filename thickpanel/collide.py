@@ -38,6 +38,7 @@ __all__ = [
     "PieceArrays",
     "pack_pieces",
     "sweep_pairs",
+    "sweep_candidates",
     "sat_gaps",
     "exact_distance",
 ]
@@ -282,6 +283,30 @@ def pack_pieces(pieces: list[Piece]) -> PieceArrays:
 
 
 # ---------------------------------------------------------------------------- broad phase
+def _best_axis(lo: FloatArray, hi: FloatArray) -> tuple[int, IntArray, IntArray]:
+    """(candidate count, sort order, candidates per box) of the sweep axis with the fewest candidates."""
+    n = len(lo)
+    best: tuple[int, IntArray, IntArray] | None = None
+    for axis in range(3):
+        order = np.argsort(lo[:, axis], kind="stable")
+        slo = lo[order, axis]
+        end = np.searchsorted(slo, hi[order, axis], side="right")
+        counts = np.maximum(end - np.arange(n) - 1, 0)
+        total = int(counts.sum())
+        if best is None or total < best[0]:
+            best = (total, order, counts)
+    assert best is not None
+    return best
+
+
+def sweep_candidates(lo: FloatArray, hi: FloatArray, *, pad: float) -> int:
+    """How many candidate pairs :func:`sweep_pairs` would test (an upper bound of the pairs it returns),
+    counted in O(N log N) without listing them."""
+    if len(lo) < 2:
+        return 0
+    return _best_axis(lo - pad, hi + pad)[0]
+
+
 def sweep_pairs(lo: FloatArray, hi: FloatArray, *, pad: float) -> IntArray:
     """Index pairs (i < j) of boxes overlapping after growing each by ``pad`` (mm).
 
@@ -296,17 +321,7 @@ def sweep_pairs(lo: FloatArray, hi: FloatArray, *, pad: float) -> IntArray:
         return np.zeros((0, 2), dtype=np.int64)
     lo = lo - pad
     hi = hi + pad
-    best: tuple[int, IntArray, IntArray] | None = None
-    for axis in range(3):
-        order = np.argsort(lo[:, axis], kind="stable")
-        slo = lo[order, axis]
-        end = np.searchsorted(slo, hi[order, axis], side="right")
-        counts = np.maximum(end - np.arange(n) - 1, 0)
-        total = int(counts.sum())
-        if best is None or total < best[0]:
-            best = (total, order, counts)
-    assert best is not None
-    total, order, counts = best
+    total, order, counts = _best_axis(lo, hi)
     first = np.repeat(np.arange(n), counts)
     offs = np.arange(total) - np.repeat(np.cumsum(counts) - counts, counts)
     i = order[first]

@@ -36,6 +36,7 @@ import numpy as np
 from ..collide import sweep_pairs
 from ..errors import ThicknessError
 from ..geometry2d import polygon_area
+from ..limits import OFFSET_PANEL_CREASE_SECONDS, OFFSET_PANEL_PAIR_SECONDS
 from ..pattern import cid
 from ..poses import fold_state_from_angles
 from ..tolerances import DEFAULT_TOL, Tolerances
@@ -50,7 +51,7 @@ from .common import (
     vertex_clearance_radius,
     vertex_cuts,
 )
-from .layers import LayerOrder, clip_convex, layer_order
+from .layers import LayerOrder, check_stack_work, clip_convex, layer_order
 from .plan import Slab, Standoff, ThickPlan
 from .setback import SETBACK_SAMPLES, crease_setbacks, trim_standoffs
 
@@ -269,6 +270,7 @@ def build(
     if not auto or not rep.collides:
         return plan
     try:
+        kw["order"] = first.meta["layers"]  # the same stack: read its order once
         cut, rep_cut = _trimmed(_build_plan(pattern, vertex_clearance=True, **kw), path, tol=tol)
     except ThicknessError as err:
         return replace(plan, notes=plan.notes + (f"vertex clearances not applied: {err}",))
@@ -354,6 +356,9 @@ def _stack_order(
                 f"method {NAME} needs a fold path to find the layer order: the final fold angles "
                 f"do not close (closure error {state.closure_error:.3g})"
             )
+    # the whole method's work against the time bound, before any of it
+    work = len(require_folding(pattern, NAME)) * OFFSET_PANEL_CREASE_SECONDS
+    check_stack_work(pattern, state, method=NAME, pair_seconds=OFFSET_PANEL_PAIR_SECONDS, other_s=work, tol=tol)
     return layer_order(pattern, state, thickness=t, tol=tol), state
 
 
