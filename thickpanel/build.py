@@ -37,7 +37,7 @@ from .build_result import (
 )
 from .design import Design, suggest
 from .envelope import diameter
-from .errors import DesignFileError, HingeError, ThickpanelError
+from .errors import DesignFileError, HingeError, ThicknessError, ThickpanelError
 from .figures import array_figures, clearance_figures
 from .outputs import prepare_out_dir, remove_outputs
 
@@ -274,53 +274,56 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         run.skip("method", "not available", why or why2)
         res.check("thickness method", "could not run", why or why2)
         return
+    from .thickness import method_function, refuted
+
     with run.stage("method") as rec:
         built: dict[str, Any] = {}  # plans advice built with default options, reused below
-        advice = list(advise(cp, target, thickness=thickness, path=res.path, plans=built))
-        res.advice = advice
+        advice = list(advise(cp, target, thickness=thickness, path=res.path, plans=built, verdict=res.rigid))
         names = [a.method for a in advice]
-        for a in advice:
-            res.check(f"method {a.method}", "info" if a.applies else "does not apply",
-                      ("applies" if a.applies else "does not apply") + (f": {a.reason}" if a.reason else ""))
         name = d.method.name
-        if name == "auto":
-            usable = [a for a in advice if a.applies]
-            if not usable:
-                rec["status"] = "failed"
-                rec["note"] = "no thickness method applies"
-                res.check("thickness method", "fail", "no method applies: " +
-                          "; ".join(f"{a.method}: {a.reason}" for a in advice))
-                run.blocked = "no thickness method applies"
-                return
-            name = usable[0].method
-        elif name not in names:
+        if name != "auto" and name not in names:
             raise DesignFileError(f"[method] name = {name!r} is not a thickness method{suggest(name, names)} "
                                   f"(available: auto, {', '.join(names)})")
-        else:
-            chosen = advice[names.index(name)]
-            if not chosen.applies:
-                rec["status"] = "failed"
-                rec["note"] = f"{name} does not apply: {chosen.reason}"
-                res.check("thickness method", "fail", rec["note"])
-                run.blocked = rec["note"]
-                return
         opts = dict(d.method.options)
         fixed = ("pattern", "method", "thickness", "target_fold", "path", "tol")
         _check_options(make, opts, "[method] options", fixed=fixed)
-        impl, _ = _api(f"thickness.{name.replace('-', '_')}", "build")  # the method's own signature
-        if impl is not None:
-            _check_options(impl, opts, f"[method] options (method {name!r})", fixed=fixed)
-        try:
-            plan = built[name] if not opts and name in built else \
-                make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
-        except TypeError as exc:
-            raise DesignFileError(f"[method] options for {name!r}: {exc}") from exc
-        except ThickpanelError as exc:
-            rec["status"] = "failed"
-            rec["note"] = str(exc)
-            res.check("thickness method", "fail", f"{name}: {exc}")
-            run.blocked = f"{name} failed"
-            return
+        plan: Any = None
+        while plan is None:
+            chosen = _chosen(advice, name)
+            if chosen is None or not chosen.applies:
+                _advice_checks(res, advice)
+                rec["status"] = "failed"
+                if chosen is None:
+                    rec["note"] = "no thickness method applies"
+                    res.check("thickness method", "fail", "no method applies: " +
+                              "; ".join(f"{a.method}: {a.reason}" for a in advice))
+                    run.blocked = "no thickness method applies"
+                else:
+                    rec["note"] = f"{name} does not apply: {chosen.reason}"
+                    res.check("thickness method", "fail", rec["note"])
+                    run.blocked = rec["note"]
+                return
+            fn = method_function(chosen.method)  # the method's own signature
+            if fn is not None:
+                _check_options(fn, opts, f"[method] options (method {chosen.method!r})", fixed=fixed)
+            try:
+                plan = built[chosen.method] if not opts and chosen.method in built else \
+                    make(cp, chosen.method, thickness=thickness, target_fold=target, path=res.path, **opts)
+            except TypeError as exc:
+                raise DesignFileError(f"[method] options for {chosen.method!r}: {exc}") from exc
+            except ThickpanelError as exc:
+                if not opts and not chosen.built and isinstance(exc, ThicknessError):
+                    # assessed, not built, for advice: building is the test; rank again without it
+                    advice = refuted(advice, chosen.method, str(exc), target)
+                    continue
+                _advice_checks(res, advice)
+                rec["status"] = "failed"
+                rec["note"] = str(exc)
+                res.check("thickness method", "fail", f"{chosen.method}: {exc}")
+                run.blocked = f"{chosen.method} failed"
+                return
+        _advice_checks(res, advice)
+        name = chosen.method
         if any(o.material for o in d.panels.overrides):  # per-region materials go on the slabs
             import dataclasses
 
@@ -331,6 +334,20 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         res.metrics["method"] = name
         rec["note"] = name + (f" ({'; '.join(plan.notes)})" if plan.notes else "")
         res.check("thickness method", "pass", rec["note"])
+
+
+def _chosen(advice: list[Any], name: str) -> Any:
+    """The advice entry of method ``name`` (``auto``: the first that applies, None when none does)."""
+    if name == "auto":
+        return next((a for a in advice if a.applies), None)
+    return next(a for a in advice if a.method == name)
+
+
+def _advice_checks(res: BuildResult, advice: list[Any]) -> None:
+    res.advice = advice
+    for a in advice:
+        res.check(f"method {a.method}", "info" if a.applies else "does not apply",
+                  ("applies" if a.applies else "does not apply") + (f": {a.reason}" if a.reason else ""))
 
 
 def _check_options(fn: Callable[..., Any], opts: dict[str, Any], where: str, fixed: tuple[str, ...]) -> None:
