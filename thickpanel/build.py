@@ -23,7 +23,7 @@ from typing import Any
 
 import numpy as np
 
-from .build_figures import export_figures, hardware_for, hinge_reach
+from .build_figures import export_figures, hardware_for, hinge_reach, resolved_hinge_options
 from .build_result import (
     ORDER,
     SLACK_MAX_DEG,
@@ -456,14 +456,7 @@ def _solids(run: _Run) -> None:
     if fn is None:
         run.skip("solids", "not available", why)
         return
-    opts = dict(d.hinge.options)
-    if opts.get("play_mm") == "slack":  # play budget per hinge from the joint-slack stage (peak over the fold)
-        if res.slack is None:
-            raise DesignFileError("[hinge] play_mm = \"slack\" needs the joint-slack play of a locked pattern; "
-                                  "this pattern folds rigidly (or the slack stage did not run): give play_mm in mm")
-        peak = res.slack.play_mm.max(axis=0) if res.slack.play_mm.size else []
-        along = res.slack.along_mm.max(axis=0) if res.slack.along_mm.size else []
-        opts["play_mm"] = {h: (float(v), float(a)) for h, v, a in zip(res.slack.hinges, peak, along, strict=True)}
+    opts = resolved_hinge_options(res)  # play_mm = "slack": each hinge's joint-slack play
     styles_fn, _ = _api("hinges", "available_hinge_styles")
     if styles_fn is not None:
         styles = list(styles_fn())
