@@ -351,6 +351,22 @@ states = 4
         assert d.info["play_provided_mm"] >= d.info["play_needed_mm"] - 1e-12
         assert d.info["play_along_provided_mm"] >= d.info["play_along_needed_mm"]
     assert max(peak.values()) == pytest.approx(0.375, abs=0.001)
+    # the clearance sweep with the hardware: slabs posed by the least-squares fold (hinges with
+    # their play) and the knuckles' barrels and pins as convex pieces
+    from thickpanel.build_figures import hardware_for
+    from thickpanel.clearance import clearance
+    from thickpanel.poses import FoldPath, FoldState
+
+    pieces = hardware_for(res)
+    assert len(pieces) >= 2 * len(designs)  # barrels and pins of every hinge line
+    ang = np.zeros(res.pattern.n_creases)
+    states = []
+    for k, t in enumerate(res.slack.fractions):
+        a = ang.copy()
+        a[[int(h[1:]) for h in res.slack.hinges]] = np.deg2rad(res.slack.fold_deg[k])
+        states.append(FoldState(res.pattern, a, res.slack.poses[k], float(t)))
+    rep = clearance(res.plan, FoldPath(tuple(states), "target", "t", {}), refine=False, extra_pieces=pieces)
+    assert np.isfinite(rep.min_clearance) and len(rep.table) == len(states)
 
 
 # ------------------------------------------------------------------------ flat-folded targets
@@ -393,19 +409,3 @@ def test_spiral_hub_corners_forbid_a_flat_folded_state(flagship):
 
     with pytest.raises(FoldError, match=r"4 interior vertices fail Kawasaki or Maekawa \(V001, V003, V005, V007\)"):
         flat_folded_state(flagship)
-    # the clearance sweep with the hardware: slabs posed by the least-squares fold (hinges with
-    # their play) and the knuckles' barrels and pins as convex pieces
-    from thickpanel.build_figures import hardware_for
-    from thickpanel.clearance import clearance
-    from thickpanel.poses import FoldPath, FoldState
-
-    pieces = hardware_for(res)
-    assert len(pieces) >= 2 * len(designs)  # barrels and pins of every hinge line
-    ang = np.zeros(res.pattern.n_creases)
-    states = []
-    for k, t in enumerate(res.slack.fractions):
-        a = ang.copy()
-        a[[int(h[1:]) for h in res.slack.hinges]] = np.deg2rad(res.slack.fold_deg[k])
-        states.append(FoldState(res.pattern, a, res.slack.poses[k], float(t)))
-    rep = clearance(res.plan, FoldPath(tuple(states), "target", "t", {}), refine=False, extra_pieces=pieces)
-    assert np.isfinite(rep.min_clearance) and len(rep.table) == len(states)
