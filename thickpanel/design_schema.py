@@ -113,6 +113,11 @@ SCHEMA: tuple[Key, ...] = (
     Key("fold", "driver", "str", "", "", "Crease id driving the fold (`C012`); empty: fold fraction of the "
         "largest fold."),
     Key("fold", "stop_at_contact", "bool", "", False, "End the fold path at the first panel contact."),
+    Key("fold", "path", "str", "", "assignment", "How the fold path chooses among several degrees of freedom: "
+        "`assignment` (the direction the crease signs give), `symmetric` (keep the rotational symmetry) or "
+        "`clearance` (keep panels not joined by a crease furthest apart, never unfolding a crease; inside the "
+        "symmetric subspace when the pattern has a rotational symmetry); the chosen paths stop where "
+        "zero-thickness panels would cross.", choices=("assignment", "symmetric", "clearance")),
     Key("exports", "formats", "list[str]", "", ["step", "stl", "bom"], "Export formats "
         "(`thickpanel.export.available_formats()`)."),
     Key("exports", "states", "list[float]", "-", [0.0, 1.0], "Fold fractions t to export the assembly at "
@@ -127,7 +132,10 @@ SCHEMA: tuple[Key, ...] = (
     Key("exports", "report", "bool", "", True, "Write the HTML report with the exports."),
     Key("exports", "drawings", "bool", "", True, "Write SVG and PNG crease drawings with the exports."),
     Key("checks", "min_clearance", "float", "mm", 0.0, "Least clearance between non-adjacent parts over the "
-        "whole fold for the design to pass.", lo=-1000.0, hi=1000.0),
+        "whole fold for the design to pass (slabs and hinge hardware; panels joined by a hinge line, or touching "
+        "at a shared vertex in the flat sheet, count only when they overlap). The sweep measures out to five "
+        "thicknesses or twice this value, whichever is larger, so a requirement is always checked against a "
+        "measured distance or a bound above it.", lo=-1000.0, hi=1000.0),
     Key("checks", "require_rigid", "bool", "", False, "Fail the design when the pattern is not rigidly foldable "
         "(leave false for membrane or slack-hinge designs)."),
     Key("checks", "require_flat_foldable", "bool", "", False, "Fail the design when a vertex violates Kawasaki, "
