@@ -67,7 +67,7 @@ def warm() -> dict[str, Any]:
     import scipy.sparse  # noqa: F401
     import scipy.spatial  # noqa: F401
 
-    from .. import build, clearance, collide, design, solids  # noqa: F401
+    from .. import build, clearance, collide, design, sat_kernel, solids  # noqa: F401 - sat_kernel loads numba
 
     return {"pid": os.getpid(), "seconds": round(time.perf_counter() - t0, 4)}
 
