@@ -121,10 +121,10 @@ def test_unreachable_scheduler_is_a_clear_error_within_the_timeout(tmp_path):
 # ------------------------------------------------------------------ one small study, run in-process
 @pytest.fixture(scope="module")
 def small(tmp_path_factory):
-    """Thickness 1 and 2 mm x 8 and 4 arms; the 4-arm disc is not a valid design."""
+    """Thickness 1 and 2 mm x 8 and 3 arms; the 3-arm disc is not a valid design (4 slits, 3 arms)."""
     tmp = tmp_path_factory.mktemp("small")
     s = load_study(_study(tmp, [{"key": "panels.thickness", "values": [1.0, 2.0]},
-                                {"key": "layout.arms", "values": [8, 4]}]))
+                                {"key": "layout.arms", "values": [8, 3]}]))
     first = run_study(s, workers=1, limit=2)
     rest = run_study(s, workers=1)
     return s, first, rest
@@ -135,9 +135,9 @@ def test_rerun_computes_only_missing_and_bad_variants_are_rows(small):
     assert len(first.computed) == 2
     assert len(rest.computed) == 2 and set(rest.computed).isdisjoint(first.computed)
     assert rest.skipped == 2 and len(rest.rows) == 4
-    bad = [r for r in rest.rows if r["axis.layout.arms"] == 4]
+    bad = [r for r in rest.rows if r["axis.layout.arms"] == 3]
     assert len(bad) == 2 and all(r["status"] == "failed" and r["error_class"] == "DesignFileError"
-                                 and "[layout] family = 'spiral-rings'" in r["error_message"] for r in bad)
+                                 and "slits = 4 is out of range" in r["error_message"] for r in bad)
     assert all(r["cpu_seconds"] > 0 for r in rest.rows if r["status"] == "ok")
     jl, cs, pq = _table_ids(s.output)
     assert jl == cs == pq == sorted(v.id for v in variants(s))
