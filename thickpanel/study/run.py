@@ -2,9 +2,9 @@
 
 One code path for the pool and the cluster: ``workers > 1`` starts a loopback
 ``dask.distributed.LocalCluster`` (processes, one thread each); ``scheduler="tcp://HOST:PORT"``
-connects to an existing one. Every worker imports the pipeline and cadquery once, when the cluster
+connects to an existing one. Every worker imports the pipeline and the OCP kernel once, when the cluster
 starts (:func:`warm`), and reuses them for all its variants; one task is one variant (a check takes
-about a second, so the Dask overhead per task, about a millisecond, does not count).
+a few tenths of a second, so the Dask overhead per task, about a millisecond, does not count).
 
 Rows stream to ``results.jsonl`` (one line per finished variant, flushed); ``results.csv`` and
 ``results.parquet`` are written atomically from it at the end and after a Ctrl-C, so an interrupted
