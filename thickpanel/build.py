@@ -34,6 +34,14 @@ from .build_result import (
     _Run,
     default_out_dir,
 )
+from .build_wrap import (
+    clearance_path,
+    hub_exemption,
+    is_wrap_sheet,
+    wrap_fold_path_stage,
+    wrap_metrics_into,
+    wrap_rigidity_stage,
+)
 from .design import Design, suggest
 from .envelope import diameter, packing_ratio, principal_frame
 from .errors import DesignFileError, HingeError, ThickpanelError
@@ -157,7 +165,11 @@ def _foldability(run: _Run, cp: Any) -> None:
         text = rep.summary() if hasattr(rep, "summary") else str(rep)
         rec["note"] = text.splitlines()[0] if text else ""
         failing = list(getattr(rep, "failing", []) or [])
-        if rep.ok:
+        exempt = hub_exemption(cp, failing)
+        if exempt:  # hub corners of a hub-wrap sheet: Kawasaki does not apply there
+            failing = [v for v in failing if v not in exempt]
+            rec["note"] += f"; hub corners exempt (Kawasaki does not apply at the hub): {', '.join(exempt)}"
+        if rep.ok or (exempt and not failing):
             res.check("flat-foldable vertices", "pass", rec["note"])
         else:
             verdict = "fail" if d.checks.require_flat_foldable else "warn"
@@ -167,6 +179,10 @@ def _foldability(run: _Run, cp: Any) -> None:
 
 def _rigidity(run: _Run, cp: Any) -> None:
     res, d = run.res, run.res.design
+    if is_wrap_sheet(cp):  # structural verdict; the deployment's compliance replaces joint slack
+        with run.stage("rigidity") as rec:
+            wrap_rigidity_stage(res, rec, d.checks.require_rigid)
+        return
     fn, why = _api("kinematics", "rigid_foldability")
     if fn is None:
         run.skip("rigidity", "not available", why)
@@ -215,6 +231,10 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
     res, d = run.res, run.res.design
     if run.blocked:
         run.skip("fold path", "blocked", run.blocked)
+        return
+    if is_wrap_sheet(cp):  # the stowed state is the construction's, not the rigid solver's
+        with run.stage("fold path") as rec:
+            wrap_fold_path_stage(res, rec, d.fold.states)
         return
     fn, why = _api("kinematics", "fold_path")
     if fn is None:
@@ -359,7 +379,10 @@ def _clearance(run: _Run) -> None:
         # measure pairs out to a few slab thicknesses so the report quotes real distances, not only
         # the bound "at least the margin" (the sweep's own default margin is one thickness)
         margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
-        rep = fn(res.plan, res.path, margin=margin)
+        if is_wrap_sheet(res.pattern):  # exact end states only (deployed, stowed); see build_wrap
+            rep = fn(res.plan, clearance_path(res.path), margin=margin, refine=False)
+        else:
+            rep = fn(res.plan, res.path, margin=margin)
         first = getattr(rep, "first_contact", None)
         if d.fold.stop_at_contact and first:
             rep = _stop_at_contact(res, fn, rep, float(first[0]))
@@ -414,7 +437,10 @@ def _envelope(res: BuildResult) -> None:
         res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
         res.metrics["envelope_from"] = got[1]
     res.metrics["packing_ratio"] = packing_ratio(res.metrics["deployed_area_mm2"], res.metrics["stowed_envelope_mm"])
-    res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
+    if is_wrap_sheet(res.pattern):  # diameters about the hub axis and the stowed-annulus figures
+        wrap_metrics_into(res)
+    else:
+        res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
 
 
 def _solids(run: _Run) -> None:

@@ -250,7 +250,7 @@ def neighbour_keys(plan: ThickPlan) -> IntArray:
 
 # ---------------------------------------------------------------------------- one state
 def _plan_poses(plan: ThickPlan, state: FoldState, on_reference: bool) -> FloatArray:
-    if on_reference:
+    if on_reference and not plan.explicit_poses and not plan.follow_state:
         return np.asarray(state.poses)
     return plan.poses(state)
 
