@@ -32,7 +32,7 @@ def _part_points(partset: PartSet, state: Any) -> np.ndarray:
     poses = partset.poses(state)
     slabs = partset.plan.slabs
     out = []
-    for p in partset.parts:
+    for p in partset.in_state(state):
         if p.kind == "panel" and p.outline is not None:
             sl = slabs[p.panel]
             o = np.asarray(p.outline, dtype=float)
@@ -58,7 +58,7 @@ def metrics(partset: PartSet, state: Any = None, clearance: Any = None) -> dict[
     area = float(sum(p.area for p in panels))
     corners = np.vstack([p.outline for p in panels if p.outline is not None])
     st = state if state is not None else partset.state
-    shapes = partset.placed(st) if st is not None else [p.frame_shape for p in partset.parts]
+    shapes = partset.placed(st) if st is not None else [p.frame_shape for p in partset.in_state(None)]
     box = occ.bbox(occ.compound(shapes))
     ext = principal_extents(_part_points(partset, st))
     out: dict[str, Any] = {
@@ -75,6 +75,10 @@ def metrics(partset: PartSet, state: Any = None, clearance: Any = None) -> dict[
         "total_mass_g": _total_mass(partset),
         "min_clearance_mm": None,
     }
+    from ..wrap.metrics import wrap_metrics
+
+    # hub-wrap arrays: diameters about the hub axis and the stowed-annulus figures (one source)
+    out.update({k: round(v, 6) for k, v in wrap_metrics(partset.plan.pattern, partset.plan).items()})
     if clearance is not None:
         mc = float(clearance.min_clearance)
         # JSON has no infinity: a path with no pair of slabs that counts has no minimum

@@ -145,9 +145,10 @@ def build(
         hinges.append(make_hinge(pattern, c, z=zb, face="membrane", gap=float(gaps[c]) if gaps.size else 0.0,
                                  fold_range=(min(0.0, r), max(0.0, r))))
     outline = _outline(pattern)
+    hub = next(p for p, pc in enumerate(info.pieces) if pc.kind == "hub")
     backing = SheetPart("BACKING", "membrane", tuple((float(x), float(y)) for x, y in outline), -t / 2.0 - tm,
                         -t / 2.0, backing_material,
-                        {"backing_thickness": tm, "flat_only": True,
+                        {"backing_thickness": tm, "flat_only": True, "cut_sheet": True, "panel": hub,
                          "bonded": tuple((p, s.polygon) for p, s in enumerate(slabs)),
                          "note": "flexible backing: shown flat only; not rigid, so left out of folded assemblies"})
     stowed = np.array(info.stowed_poses, dtype=float)
