@@ -56,7 +56,7 @@ def _outline_area(m: int, r: int) -> float:
 def _isometry_error(cp) -> float:
     info = wrap_info(cp)
     worst = 0.0
-    for p, pc in enumerate(info.pieces):
+    for p in range(len(info.pieces)):
         q = cp.panel_polygon(p)
         flat = np.column_stack([q, np.zeros(len(q))])
         placed = flat @ info.stowed_poses[p][:3, :3].T + info.stowed_poses[p][:3, 3]
@@ -150,7 +150,8 @@ def test_wrap_backing_plan(small):
 
 def test_wrap_backing_refusals(small):
     with pytest.raises(ThicknessError, match="applies only to sheets made by the hub-wrap layout"):
-        make_plan(make_layout("miura", a=20.0, b=20.0, gamma_deg=60.0, nx=2, ny=2), "wrap-backing", thickness=2.0, target_fold=math.pi)
+        miura = make_layout("miura", a=20.0, b=20.0, gamma_deg=60.0, nx=2, ny=2)
+        make_plan(miura, "wrap-backing", thickness=2.0, target_fold=math.pi)
     with pytest.raises(ThicknessError, match="min_backing"):
         make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, backing_thickness=0.01)
     with pytest.raises(ThicknessError, match="backing_material = 'unobtainium'"):
