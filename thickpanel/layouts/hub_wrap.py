@@ -16,7 +16,7 @@ from ..errors import PatternError
 from ..pattern import CreasePattern
 from ..tolerances import DEFAULT_TOL, Tolerances
 from ..wrap.geometry import Hub, WrapSpec
-from ..wrap.sheet import build_sheet, mirrored, wrap_info
+from ..wrap.sheet import GapsFn, build_sheet, mirrored, wrap_info
 from ..wrap.zero import zero_thickness_pieces
 from . import register_layout, register_panel_estimate
 from .assignment import LayoutInfo, attach_info
@@ -81,7 +81,8 @@ def deployed_circumradius(spec: WrapSpec, extra: float = 0.0) -> float:
 def hub_wrap_panels(sides: int = 6, rings: int = 4, ring_height: float | None = None,
                     hub_circumradius: float | None = None, hub_inradius: float | None = None,
                     outer_diameter: float | None = None, **_: object) -> int:
-    """Panel count of the zero-thickness sheet (the thick one has about as many): 1 + m (r + 2 sum_k ceil(k h tan/s))."""
+    """Panel count of the zero-thickness sheet, ``1 + m (r + 2 sum_k ceil(k h tan(pi/m) / s))`` (the thick
+    sheet has fewer)."""
     spec = resolve_spec(sides, rings, ring_height, hub_circumradius, hub_inradius, outer_diameter)
     hub = Hub(spec.sides, spec.hub_circumradius)
     per = sum(math.ceil(k * spec.ring_height * hub.tan / hub.s - 1e-12) for k in range(1, spec.rings + 1))
@@ -154,7 +155,7 @@ def hub_wrap(
         rd = deployed_circumradius(spec)
         outline = rd * hub.u
         extra: dict = {"stowed_height": spec.ring_height}
-        gaps_fn = None
+        gaps_fn: GapsFn | None = None
     else:
         from ..wrap.thick import thick_sheet
 
@@ -163,7 +164,8 @@ def hub_wrap(
     params["deployed_diameter"] = 2.0 * rd
     if spec.wrap == "cw":
         pieces, outline = mirrored(pieces, outline)
-    cp = build_sheet(pieces, outline, name=name or "hub-wrap", params=params, gaps_fn=gaps_fn, extra=extra, tol=tol)
+    cp = build_sheet(pieces, outline, name=name or "hub-wrap", params=params, gaps_fn=gaps_fn, extra=extra,
+                     tol=tol)
     info = wrap_info(cp)
     assert info is not None
     arm = np.array([_gore_of(cp, c, info) for c in range(cp.n_creases)], dtype=np.int64)

@@ -11,15 +11,15 @@ from __future__ import annotations
 
 import math
 import weakref
-from collections.abc import Sequence
-from dataclasses import dataclass, field
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy.spatial import cKDTree
 
 from ..errors import PatternError
 from ..pattern import CreasePattern, pid
-from ..segments import pattern_from_segments
+from ..segments import merge_points
 from ..tolerances import DEFAULT_TOL, Tolerances
 from ..typing import FloatArray, IntArray
 from .zero import WrapPiece
@@ -28,6 +28,7 @@ __all__ = ["WrapInfo", "build_sheet", "wrap_info", "fold_angles_from_poses", "mi
 
 _FLAT_FOLD = 1e-6  # rad: |pi - |rho|| below this is a 180 deg fold whose sense comes from the stack
 _NO_FOLD = 1e-9  # rad: |rho| below this is a drawn line that does not fold
+_SNAP = 1e-5  # mm: construction corners closer than this are one vertex (round-off of clipped corners)
 
 
 @dataclass(frozen=True)
@@ -60,6 +61,9 @@ class WrapInfo:
     hub_vertices: tuple[int, ...]
     extra: dict = field(default_factory=dict)
 
+
+GapsFn = Callable[[CreasePattern, list[WrapPiece], list[str]], FloatArray]
+"""``gaps_fn(pattern, pieces by panel, crease labels) -> (m,) float``: bare backing width per crease, mm."""
 
 _INFO: weakref.WeakKeyDictionary[CreasePattern, WrapInfo] = weakref.WeakKeyDictionary()
 
@@ -103,23 +107,42 @@ def fold_angles_from_poses(pattern: CreasePattern, poses: FloatArray, ranks: Flo
     return rho
 
 
-def _label(a: WrapPiece, b: WrapPiece, rho: float) -> str:
+def _label(a: WrapPiece, b: WrapPiece) -> str:
+    """Crease class from the two panels it joins."""
     kinds = {a.kind, b.kind}
     if "hub" in kinds:
         return "hub"
-    if abs(abs(rho) - math.pi) < _FLAT_FOLD:
-        if a.ring != b.ring:
-            return "accordion"
-        if kinds == {"g", "w"}:
-            return "radial"
+    if a.ring != b.ring:
+        return "accordion"
+    if kinds == {"g", "w"} and a.segment >= 0 and b.segment >= 0 and a.gore == b.gore:
+        return "radial"
+    if kinds == {"ring", "w"} and a.gore != b.gore:
         return "u-turn"
-    if rho == 0.0:
-        return "flat"
     return "bend"
 
 
+def _settle_flat_folds(rho: FloatArray, labels: list[str], pairs: IntArray, pieces: Sequence[WrapPiece]) -> FloatArray:
+    """Accordion and radial creases are 180 deg folds of the backing even where the two plates are not
+    parallel (thick sheets); their sense is the one the parallel creases of the same fold line show."""
+    rho = rho.copy()
+    votes: dict[tuple, float] = {}
+    for c, lb in enumerate(labels):
+        if lb in ("accordion", "radial") and abs(abs(rho[c]) - math.pi) < _FLAT_FOLD:
+            a, b = pieces[int(pairs[c, 0])], pieces[int(pairs[c, 1])]
+            key = (lb, min(a.ring, b.ring))
+            votes[key] = votes.get(key, 0.0) + (1.0 if rho[c] > 0 else -1.0) * (1 if a.ring <= b.ring else -1)
+    for c, lb in enumerate(labels):
+        if lb in ("accordion", "radial") and abs(abs(rho[c]) - math.pi) >= _FLAT_FOLD:
+            a, b = pieces[int(pairs[c, 0])], pieces[int(pairs[c, 1])]
+            v = votes.get((lb, min(a.ring, b.ring)), 0.0)
+            if v != 0.0:
+                rho[c] = math.copysign(math.pi, v * (1 if a.ring <= b.ring else -1))
+    return rho
+
+
 def build_sheet(pieces: Sequence[WrapPiece], outline: FloatArray, *, name: str, params: dict,
-                gaps_fn: object = None, extra: dict | None = None, tol: Tolerances = DEFAULT_TOL) -> CreasePattern:
+                gaps_fn: GapsFn | None = None, extra: dict | None = None,
+                tol: Tolerances = DEFAULT_TOL) -> CreasePattern:
     """Crease pattern of a wrapped-hub sheet from its panels (flat polygons and stowed poses).
 
     Parameters
@@ -135,19 +158,22 @@ def build_sheet(pieces: Sequence[WrapPiece], outline: FloatArray, *, name: str, 
         ``gaps_fn(pattern, pieces_by_panel, labels) -> (m,) float`` bare backing width per crease.
     extra : dict, optional
     """
-    # every shared edge once (pieces meet edge to edge or in T-junctions, which the splitter resolves)
-    seen: dict[tuple, FloatArray] = {}
+    # every shared edge once: snap all corners to one vertex set, then keep each vertex pair once
+    # (pieces meet edge to edge or in T-junctions, which the splitter resolves)
+    allpts = np.concatenate([np.asarray(pc.polygon, dtype=float) for pc in pieces])
+    uniq, label = merge_points(allpts, tol=replace(tol, merge=max(tol.merge, _SNAP)))
+    pairs: set[tuple[int, int]] = set()
+    start = 0
     for pc in pieces:
-        p = np.asarray(pc.polygon, dtype=float)
-        for a, b in zip(p, np.roll(p, -1, axis=0), strict=True):
-            ka, kb = tuple(np.round(a, 7)), tuple(np.round(b, 7))
-            key = (ka, kb) if ka <= kb else (kb, ka)
-            seen.setdefault(key, np.array([a, b]))
-    segs: list[FloatArray] = list(seen.values())
-    kinds: list[str] = ["flat"] * len(segs)
-    o = np.asarray(outline, dtype=float)
-    raw = pattern_from_segments(np.array(segs), kinds, name=name, tol=tol, validate=False)
+        ids = label[start:start + len(pc.polygon)]
+        start += len(pc.polygon)
+        for a, b in zip(ids, np.roll(ids, -1), strict=True):
+            if a != b:
+                pairs.add((int(min(a, b)), int(max(a, b))))
+    pair_arr = _split_at_vertices(uniq, np.array(sorted(pairs), dtype=np.int64), 10.0 * _SNAP)
+    raw = CreasePattern(uniq, pair_arr, ["flat"] * len(pair_arr), name=name, tol=tol, validate=False)
     # panels <-> pieces by centroid
+    o = np.asarray(outline, dtype=float)
     cents = np.array([pn.centroid for pn in raw.panels])
     pcs = np.array([_centroid(pc.polygon) for pc in pieces])
     dist, idx = cKDTree(pcs).query(cents)
@@ -160,20 +186,45 @@ def build_sheet(pieces: Sequence[WrapPiece], outline: FloatArray, *, name: str, 
     ranks = np.array([pc.rank for pc in ordered])
     outs = np.array([pc.out for pc in ordered])
     rho = fold_angles_from_poses(raw, poses, ranks, outs)
-    outside = (raw.crease_panels < 0).any(axis=1)
+    cpan = raw.crease_panels
+    outside = np.asarray((cpan < 0).any(axis=1), dtype=bool)
+    labels = ["border" if outside[c] else _label(ordered[int(cpan[c, 0])], ordered[int(cpan[c, 1])])
+              for c in range(raw.n_creases)]
+    rho = _settle_flat_folds(rho, labels, cpan, ordered)
     kinds_c = np.where(outside, "border", np.where(rho > 0, "valley", np.where(rho < 0, "mountain", "flat")))
     cp = CreasePattern(raw.vertices, raw.creases, list(kinds_c), np.where(kinds_c == "border", np.nan, rho),
                        name=name, tol=tol)
-    labels = []
-    for c in range(cp.n_creases):
-        lft, rgt = (int(x) for x in cp.crease_panels[c])
-        labels.append("border" if lft < 0 or rgt < 0 else _label(ordered[lft], ordered[rgt], float(rho[c])))
-    gaps = np.zeros(cp.n_creases) if gaps_fn is None else np.asarray(gaps_fn(cp, ordered, labels), dtype=float)  # type: ignore[operator]
+    gaps = np.zeros(cp.n_creases) if gaps_fn is None else \
+        np.asarray(gaps_fn(cp, list(ordered), labels), dtype=np.float64)
     hub_pts = [pc for pc in ordered if pc.kind == "hub"][0].polygon
     hv = tuple(int(i) for i in cKDTree(cp.vertices).query(hub_pts)[1]) if cp.n_vertices else ()
     poses.setflags(write=False)
     _INFO[cp] = WrapInfo(dict(params), ordered, poses, tuple(labels), gaps, hv, dict(extra or {}))
     return cp
+
+
+def _split_at_vertices(pts: FloatArray, pairs: IntArray, eps: float) -> IntArray:
+    """Split every segment (vertex index pair) at the vertices lying on it (T-junctions); unique pairs."""
+    tree = cKDTree(pts)
+    out: set[tuple[int, int]] = set()
+    a, b = pts[pairs[:, 0]], pts[pairs[:, 1]]
+    mids, half = (a + b) / 2.0, np.linalg.norm(b - a, axis=1) / 2.0
+    for n, (i, j) in enumerate(pairs):
+        near = tree.query_ball_point(mids[n], half[n] + eps)
+        d = b[n] - a[n]
+        ll = float(d @ d)
+        on = []
+        for q in near:
+            if q in (i, j):
+                continue
+            w = pts[q] - a[n]
+            tt = float(w @ d) / ll
+            if 0.0 < tt < 1.0 and abs(float(w[0] * d[1] - w[1] * d[0])) / math.sqrt(ll) < eps:
+                on.append((tt, q))
+        chain = [int(i)] + [q for _, q in sorted(on)] + [int(j)]
+        for u, v in zip(chain[:-1], chain[1:], strict=True):
+            out.add((min(u, v), max(u, v)))
+    return np.array(sorted(out), dtype=np.int64).reshape(-1, 2)
 
 
 def _centroid(poly: FloatArray) -> FloatArray:

@@ -78,7 +78,8 @@ def _affine_pose(flat: FloatArray, placed: FloatArray) -> FloatArray:
     return pose
 
 
-def zero_thickness_pieces(m: int, rings: int, h: float, circumradius: float, *, area_tol: float = 1e-9) -> list[WrapPiece]:
+def zero_thickness_pieces(m: int, rings: int, h: float, circumradius: float, *,
+                          area_tol: float = 1e-9) -> list[WrapPiece]:
     """All panels of the zero-thickness sheet with their stowed poses.
 
     Parameters
@@ -124,7 +125,8 @@ def zero_thickness_pieces(m: int, rings: int, h: float, circumradius: float, *, 
                     pose_a = _affine_pose(flat_a, placed)
                     # ranks: face stack 1..r, then arm j's hairpins w^r..w^1 | g^1..g^r
                     base_rank = r + 2 * r * j
-                    pieces.append(WrapPiece(flat_a, pose_a, flat_a, "g", i, k, j, hub.n[face], float(base_rank + r + k)))
+                    pieces.append(WrapPiece(flat_a, pose_a, flat_a, "g", i, k, j, hub.n[face],
+                                            float(base_rank + r + k)))
                     flat_w = hub.reflect(i, flat_a)[::-1]  # a mirror reverses the sense
                     placed_w = placed[::-1]
                     pieces.append(WrapPiece(flat_w, _affine_pose(flat_w, placed_w), flat_w, "w", i, k, j, hub.n[face],
