@@ -37,6 +37,7 @@ from .build_result import (
 from .build_wrap import (
     clearance_path,
     hub_exemption,
+    kawasaki_scope,
     is_wrap_sheet,
     wrap_fold_path_stage,
     wrap_metrics_into,
@@ -169,6 +170,7 @@ def _foldability(run: _Run, cp: Any) -> None:
         if exempt:  # hub corners of a hub-wrap sheet: Kawasaki does not apply there
             failing = [v for v in failing if v not in exempt]
             rec["note"] += f"; hub corners exempt (Kawasaki does not apply at the hub): {', '.join(exempt)}"
+        rec["note"] += kawasaki_scope(cp)
         if rep.ok or (exempt and not failing):
             res.check("flat-foldable vertices", "pass", rec["note"])
         else:

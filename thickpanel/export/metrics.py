@@ -30,7 +30,7 @@ def _part_points(partset: PartSet, state: Any) -> np.ndarray:
     """(k, 3) points of every part placed for ``state``: panel outlines at both slab faces,
     other parts by the corners of their box in the panel frame, mm."""
     poses = partset.poses(state)
-    slabs = partset.plan.slabs
+    slabs = {sl.panel: sl for sl in partset.plan.slabs}
     out = []
     for p in partset.in_state(state):
         if p.kind == "panel" and p.outline is not None:

@@ -152,7 +152,9 @@ class ThickPlan:
     method : str
         Registry name of the method (``tapered``, ``offset-panel`` ...).
     slabs : tuple of Slab
-        One per panel, indexed like ``pattern.panels``.
+        One per panel, in panel order (``Slab.panel`` names it); every method but ``wrap-backing``
+        gives every panel one, so ``slabs[p]`` is panel p's; ``wrap-backing`` leaves panels of bare
+        backing without a slab.
     hinges : tuple of HingeLine
         One per folding crease (and seam).
     target_fold : float, rad

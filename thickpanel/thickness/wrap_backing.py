@@ -7,7 +7,9 @@ flexible backing with specified widths at the fold lines. The ``hub-wrap`` layou
 and the stowed pose of every plate; this method turns that into a :class:`ThickPlan`:
 
 * slabs = the construction's plates, centred on each panel's reference plane (z from -t/2 to t/2);
-* one hinge line per folding crease on the backing's mid-plane, with ``gap`` = the bare backing
+  a panel whose plate the construction dropped (a sliver where an arm tapers) stays bare backing and
+  has no slab (``meta["bare_panels"]``);
+* one hinge line per folding crease between two plates on the backing's mid-plane, with ``gap`` = the bare backing
   width of the construction;
 * the backing itself as a flat sheet part ``BACKING`` under the plates (``meta["sheet_parts"]``),
   with the plate outlines where each plate is bonded;
@@ -29,7 +31,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..errors import ThicknessError
-from ..pattern import cid
+from ..pattern import cid, pid
 from ..tolerances import DEFAULT_TOL, Tolerances
 from .common import check_target, make_hinge
 from .plan import Slab, ThickPlan
@@ -120,9 +122,14 @@ def build(
     if tm < min_backing:
         raise ThicknessError(f"{NAME}: backing_thickness = {tm:g} mm is below the minimum min_backing = "
                              f"{min_backing:g} mm")
+    plated = [p for p, pc in enumerate(info.pieces) if len(pc.plate) >= 3]
+    bare = [p for p in range(pattern.n_panels) if p not in set(plated)]
+    cpn = pattern.crease_panels
+    both = np.array([c for c in range(pattern.n_creases) if cpn[c, 0] in plated and cpn[c, 1] in plated], dtype=int)
     gaps = np.asarray(info.gaps, dtype=float)
-    if gaps.size and float(gaps.max()) > MAX_SPAN_RATIO * tm:
-        c = int(np.argmax(gaps))
+    span = np.where(np.isin(np.arange(len(gaps)), both) & np.isfinite(gaps), gaps, 0.0)
+    if span.size and float(span.max()) > MAX_SPAN_RATIO * tm:
+        c = int(np.argmax(span))
         raise ThicknessError(f"{NAME}: backing_thickness = {tm:g} mm is too thin for the bare gap of "
                              f"{gaps[c]:.4g} mm at crease {cid(c)}; allowed: gap <= {MAX_SPAN_RATIO:g} x backing "
                              f"thickness, so backing_thickness >= {gaps[c] / MAX_SPAN_RATIO:.4g} mm")
@@ -131,15 +138,14 @@ def build(
         raise ThicknessError(f"{NAME}: backing_material = {backing_material!r} is not in the materials table "
                              f"(available: {names})")
     slabs = []
-    for p, pc in enumerate(info.pieces):
-        poly = np.asarray(pc.plate, dtype=float)
+    for p in plated:  # panels whose plate the construction dropped stay bare backing (no slab)
+        poly = np.asarray(info.pieces[p].plate, dtype=float)
         slabs.append(Slab(p, tuple((float(x), float(y)) for x, y in poly), -t / 2.0, t / 2.0))
     rho = np.nan_to_num(np.asarray(pattern.target_angles, dtype=float))
     zb = -t / 2.0 - tm / 2.0  # backing mid-plane under the plates
     hinges = []
-    for c in range(pattern.n_creases):
-        a, b = pattern.crease_panels[c]
-        if a < 0 or b < 0 or pattern.kinds[c] not in ("mountain", "valley"):
+    for c in both.tolist():
+        if pattern.kinds[c] not in ("mountain", "valley"):
             continue
         r = float(rho[c])
         hinges.append(make_hinge(pattern, c, z=zb, face="membrane", gap=float(gaps[c]) if gaps.size else 0.0,
@@ -149,7 +155,7 @@ def build(
     backing = SheetPart("BACKING", "membrane", tuple((float(x), float(y)) for x, y in outline), -t / 2.0 - tm,
                         -t / 2.0, backing_material,
                         {"backing_thickness": tm, "flat_only": True, "cut_sheet": True, "panel": hub,
-                         "bonded": tuple((p, s.polygon) for p, s in enumerate(slabs)),
+                         "bonded": tuple((s.panel, s.polygon) for s in slabs),
                          "note": "flexible backing: shown flat only; not rigid, so left out of folded assemblies"})
     stowed = np.array(info.stowed_poses, dtype=float)
     stowed.setflags(write=False)
@@ -157,12 +163,16 @@ def build(
     flat.setflags(write=False)
     notes = [f"plates {t:g} mm on a {tm:g} mm {backing_material} backing; bare backing widths from the hub-wrap "
              "construction; stowed poses from the construction (not re-composed from fold angles)"]
+    if bare:
+        notes.append(f"{len(bare)} panels carry no plate (bare backing where the construction dropped a sliver "
+                     f"plate): {', '.join(pid(p) for p in bare[:12])}{' ...' if len(bare) > 12 else ''}")
     if t_layout == 0:
         notes.append("zero-thickness reference sheet: its stowed layers coincide, so plates of this thickness "
                      "overlap when stowed; build the sheet with [layout] panel_thickness > 0 to nest them")
     return ThickPlan(pattern, NAME, tuple(slabs), tuple(hinges), target, notes=tuple(notes),
                      meta={"sheet_parts": (backing,), "backing_thickness": tm, "backing_material": backing_material,
-                           "reachable": target, "zero_thickness_sheet": t_layout == 0},
+                           "reachable": target, "zero_thickness_sheet": t_layout == 0,
+                           "bare_panels": tuple(bare)},
                      explicit_poses=((0.0, flat), (1.0, stowed)), follow_state=True)
 
 

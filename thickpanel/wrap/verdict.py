@@ -77,6 +77,19 @@ def wrap_rigidity(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) -> R
         raise FoldError("the structural rigidity verdict needs a sheet made by the hub-wrap layout")
     cross = straight_crossings(pattern, tol=tol)
     hub = [vid(v) for v in info.hub_vertices]
+    if len(cross) == 0 and float(info.params.get("panel_thickness", 0.0)) > 0:
+        # the thick sheet splits every reference crease line by its bare backing strips; the argument
+        # runs on the zero-thickness reference sheet it is the development of (same stowed state)
+        from ..layouts.hub_wrap import hub_wrap
+
+        ref = hub_wrap(int(info.params["sides"]), int(info.params["rings"]), float(info.params["ring_height"]),
+                       float(info.params["hub_circumradius"]), wrap=str(info.params.get("wrap", "ccw")), tol=tol)
+        n_ref = len(straight_crossings(ref, tol=tol))
+        if n_ref:
+            on = (f" (on the zero-thickness reference sheet of the same hub, rings and ring height, {n_ref} "
+                  "crossings: the thick sheet is its development with bare backing strips along the creases, "
+                  "whose panels cannot fold rigidly either)")
+            return RigidVerdict("locked", 0, tuple(hub)[:16], _reason(n_ref, len(hub)) + on, 0.0)
     if len(cross) == 0:
         if pattern.n_panels <= SOLVER_PANEL_LIMIT:
             from ..kinematics import rigid_foldability
@@ -87,15 +100,18 @@ def wrap_rigidity(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) -> R
         return RigidVerdict("unknown", -1, tuple(hub), "no straight crease crossing, so the structural argument "
                             f"does not apply, and {pattern.n_panels} panels are more than the general solver is "
                             f"run on here ({SOLVER_PANEL_LIMIT})")
-    reason = (
-        f"not rigidly foldable with ideal hinges: {len(cross)} straight crease crossings fold both lines in the "
+    where = tuple(hub) + tuple(vid(int(v)) for v in cross)
+    return RigidVerdict("locked", 0, where[:16], _reason(len(cross), len(hub)), 0.0)
+
+
+def _reason(n_cross: int, n_hub: int) -> str:
+    return (
+        f"not rigidly foldable with ideal hinges: {n_cross} straight crease crossings fold both lines in the "
         "stowed state, but rigid panels fold only one line of a crossing at a time unless it is at 180 deg; "
         "a rigid path would have to fold the accordions first with the crossing lines flat, which holds each "
-        f"hub corner ({len(hub)}) as a degree-3 vertex with its radial fold at 0 and, through the "
+        f"hub corner ({n_hub}) as a degree-3 vertex with its radial fold at 0 and, through the "
         "flat-foldable degree-4 radial vertices, every accordion at 0 too; so no rigid path leaves the flat "
         "state (structural argument of the hub-wrap construction; Lang, Magleby & Howell 2016 state that the "
         "zero-thickness wrapped-hub pattern is not rigidly foldable). The stowed state is computed directly "
         "and the deployment needs compliant hinges (see the compliance figures)"
     )
-    where = tuple(hub) + tuple(vid(int(v)) for v in cross)
-    return RigidVerdict("locked", 0, where[:16], reason, 0.0)
