@@ -154,6 +154,8 @@ def test_wrap_backing_refusals(small):
         make_plan(miura, "wrap-backing", thickness=2.0, target_fold=math.pi)
     with pytest.raises(ThicknessError, match="min_backing"):
         make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, backing_thickness=0.01)
+    with pytest.raises(ThicknessError, match="too thin for the bare gap"):
+        make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, max_span_ratio=1e-3)
     with pytest.raises(ThicknessError, match="backing_material = 'unobtainium'"):
         make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, backing_material="unobtainium")
     from thickpanel.thickness.plan import ThickPlan

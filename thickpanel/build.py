@@ -37,8 +37,8 @@ from .build_result import (
 from .build_wrap import (
     clearance_path,
     hub_exemption,
-    kawasaki_scope,
     is_wrap_sheet,
+    kawasaki_scope,
     wrap_fold_path_stage,
     wrap_metrics_into,
     wrap_rigidity_stage,

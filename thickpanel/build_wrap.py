@@ -22,8 +22,8 @@ from .wrap.metrics import wrap_metrics
 from .wrap.sheet import wrap_info
 from .wrap.verdict import wrap_rigidity
 
-__all__ = ["is_wrap_sheet", "hub_exemption", "kawasaki_scope", "wrap_rigidity_stage", "wrap_fold_path_stage", "clearance_path",
-           "wrap_metrics_into", "PATH_STATES"]
+__all__ = ["is_wrap_sheet", "hub_exemption", "kawasaki_scope", "wrap_rigidity_stage", "wrap_fold_path_stage",
+           "clearance_path", "wrap_metrics_into", "PATH_STATES"]
 
 PATH_STATES = 9  # sampled states of the hub-wrap deployment (each one least-squares relaxation)
 

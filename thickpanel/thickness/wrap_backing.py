@@ -44,9 +44,6 @@ NAME = "wrap-backing"
 #: Thinnest backing accepted, mm: the thinnest common polyimide film gauge is 25 um (common
 #: practice, no source; from memory).
 MIN_BACKING_MM = 0.025
-#: Largest bare span per backing thickness (gap / backing thickness) accepted: our own rule, no
-#: source; a wider span of so thin a film does not hold the plates' spacing.
-MAX_SPAN_RATIO = 400.0
 
 
 def applies(pattern: CreasePattern) -> tuple[bool, str]:
@@ -68,6 +65,7 @@ def build(
     backing_material: str = "polyimide-film",
     backing_thickness: float | None = None,
     min_backing: float = MIN_BACKING_MM,
+    max_span_ratio: float | None = None,
     tol: Tolerances = DEFAULT_TOL,
 ) -> ThickPlan:
     """Plates on the backing membrane of a ``hub-wrap`` sheet.
@@ -83,12 +81,16 @@ def build(
         zero-thickness sheet: 0.05 mm).
     min_backing : float, mm
         Thinnest backing accepted (default :data:`MIN_BACKING_MM`).
+    max_span_ratio : float, optional
+        Widest bare gap accepted per backing thickness (gap / backing thickness), a limit the user
+        states for the film chosen (no default: the widest strips, at the hairpin tips, grow with
+        the design's size and there is no general figure we could cite).
 
     Raises
     ------
     ThicknessError
         Not a hub-wrap sheet; thickness or backing not matching the layout; a backing thinner than
-        ``min_backing`` or too thin for the widest bare gap (:data:`MAX_SPAN_RATIO`); an unknown
+        ``min_backing`` or too thin for the widest bare gap (``max_span_ratio``); an unknown
         backing material.
     """
     from hinges.base import SheetPart
@@ -128,11 +130,13 @@ def build(
     both = np.array([c for c in range(pattern.n_creases) if cpn[c, 0] in plated and cpn[c, 1] in plated], dtype=int)
     gaps = np.asarray(info.gaps, dtype=float)
     span = np.where(np.isin(np.arange(len(gaps)), both) & np.isfinite(gaps), gaps, 0.0)
-    if span.size and float(span.max()) > MAX_SPAN_RATIO * tm:
+    if max_span_ratio is not None and not (math.isfinite(max_span_ratio) and max_span_ratio > 0):
+        raise ThicknessError(f"{NAME}: max_span_ratio = {max_span_ratio!r} is out of range; allowed: > 0")
+    if max_span_ratio is not None and span.size and float(span.max()) > max_span_ratio * tm:
         c = int(np.argmax(span))
         raise ThicknessError(f"{NAME}: backing_thickness = {tm:g} mm is too thin for the bare gap of "
-                             f"{gaps[c]:.4g} mm at crease {cid(c)}; allowed: gap <= {MAX_SPAN_RATIO:g} x backing "
-                             f"thickness, so backing_thickness >= {gaps[c] / MAX_SPAN_RATIO:.4g} mm")
+                             f"{gaps[c]:.4g} mm at crease {cid(c)}; allowed: gap <= max_span_ratio ({max_span_ratio:g}) x "
+                             f"backing thickness, so backing_thickness >= {gaps[c] / max_span_ratio:.4g} mm")
     if backing_material not in MATERIALS:
         names = ", ".join(sorted(k for k in MATERIALS if k))
         raise ThicknessError(f"{NAME}: backing_material = {backing_material!r} is not in the materials table "
