@@ -154,8 +154,13 @@ def test_wrap_backing_refusals(small):
         make_plan(miura, "wrap-backing", thickness=2.0, target_fold=math.pi)
     with pytest.raises(ThicknessError, match="min_backing"):
         make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, backing_thickness=0.01)
+    thick = _sheet(4, 2, panel_thickness=2.0)
     with pytest.raises(ThicknessError, match="too thin for the bare gap"):
-        make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, max_span_ratio=1e-3)
+        make_plan(thick, "wrap-backing", thickness=2.0, target_fold=math.pi, max_span_ratio=10.0)
+    with pytest.raises(ThicknessError, match="differs from the layout's panel_thickness"):
+        make_plan(thick, "wrap-backing", thickness=3.0, target_fold=math.pi)
+    with pytest.raises(ThicknessError, match="differs from the layout's backing_thickness"):
+        make_plan(thick, "wrap-backing", thickness=2.0, target_fold=math.pi, backing_thickness=0.1)
     with pytest.raises(ThicknessError, match="backing_material = 'unobtainium'"):
         make_plan(small, "wrap-backing", thickness=2.0, target_fold=math.pi, backing_material="unobtainium")
     from thickpanel.thickness.plan import ThickPlan
@@ -278,3 +283,45 @@ def test_stowed_clearance_cross_checked_with_occ(small):
         if checked == 6:
             break
     assert checked == 6
+
+
+@pytest.mark.cad
+def test_thick_acceptance_case_builds_and_clears():
+    """m = 6, r = 4, ring height = hub circumradius = 100 mm, t = 2 mm (the issue's acceptance case)."""
+    occ = pytest.importorskip("thickpanel.occ")
+    from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+
+    from thickpanel.clearance import clearance
+    from thickpanel.geometry2d import polygon_area
+    from thickpanel.solids import build_parts
+
+    cp = _sheet(6, 4, panel_thickness=2.0)
+    path = stowed_fold_path(cp, n_states=3)
+    plan = make_plan(cp, "wrap-backing", thickness=2.0, target_fold=math.pi, path=path)
+    met = wrap_metrics(cp, plan)
+    assert met["diameter_ratio"] >= 4.0 and met["packaging_efficiency"] >= 0.45
+    # volume conservation (our derivation): the stowed radius is not below the bound
+    assert met["stowed_diameter_mm"] / 2 >= met["stowed_radius_bound_mm"]
+    rep = clearance(plan, path.with_states((path.states[-1],)), margin=10.0, refine=False)
+    assert rep.lower_bound is False and rep.min_clearance >= 0.0 and rep.first_contact is None
+    # neighbouring layers: plate faces a backing plus a layer gap apart (0.05 + 0.1 mm)
+    assert rep.min_clearance == pytest.approx(0.15, abs=1e-6)
+    poses = plan.explicit_at(1.0)
+    slab = {sl.panel: sl for sl in plan.slabs}
+
+    def solid(p: int):
+        sl = slab[p]
+        return occ.moved(occ.prism(sl.polygon_array(), sl.z0, sl.z1), poses[p])
+
+    for (a, b), value, _t in rep.worst_pairs[:6]:  # OCP BRepExtrema on the closest pairs
+        d = BRepExtrema_DistShapeShape(solid(int(a[1:])), solid(int(b[1:]))).Value()
+        assert d == pytest.approx(value, abs=1e-6)
+    # every solid valid (BRepCheck), plate volume = area x thickness, backing flat only
+    ps = build_parts(plan, hinge_style="none")
+    for part in ps.parts:
+        assert occ.check_shape(part.frame_shape), part.name
+        if part.kind == "panel":
+            area = abs(polygon_area(slab[part.panel].polygon_array()))
+            assert part.volume == pytest.approx(area * 2.0, rel=1e-9)
+    names = [p.name for p in ps.parts]
+    assert "BACKING" in names and "BACKING" not in [p.name for p in ps.in_state(path.states[-1])]

@@ -135,7 +135,8 @@ def build(
     if max_span_ratio is not None and span.size and float(span.max()) > max_span_ratio * tm:
         c = int(np.argmax(span))
         raise ThicknessError(f"{NAME}: backing_thickness = {tm:g} mm is too thin for the bare gap of "
-                             f"{gaps[c]:.4g} mm at crease {cid(c)}; allowed: gap <= max_span_ratio ({max_span_ratio:g}) x "
+                             f"{gaps[c]:.4g} mm at crease {cid(c)}; allowed: gap <= max_span_ratio "
+                             f"({max_span_ratio:g}) x "
                              f"backing thickness, so backing_thickness >= {gaps[c] / max_span_ratio:.4g} mm")
     if backing_material not in MATERIALS:
         names = ", ".join(sorted(k for k in MATERIALS if k))
