@@ -166,3 +166,21 @@ def test_bad_input_names_the_key(kw: dict, key: str) -> None:
 def test_thickness_too_large_to_nest_names_ring_and_amount() -> None:
     with pytest.raises(PatternError, match=r"ring 1.*by [0-9.]+ mm"):
         make_layout("hub-wrap", sides=6, rings=10, ring_height=20.0, hub_circumradius=100.0, panel_thickness=2.0)
+
+
+def test_thick_backing_never_stretches(thick) -> None:
+    """The backing is inextensible (a film): every stowed gap between facing plate edges must be at most
+    the flat width of backing between them."""
+    from thickpanel.wrap.check import backing_strain
+
+    cp, _ = thick
+    strain = backing_strain(cp)
+    assert strain.stretch <= 1e-9
+    assert {"hub", "accordion", "bend", "radial", "u-turn"} <= set(strain.by_label)
+
+
+def test_zero_thickness_backing_is_exact() -> None:
+    from thickpanel.wrap.check import backing_strain
+
+    strain = backing_strain(_zero(6, 4, 100.0, 100.0))
+    assert abs(strain.stretch) < 1e-9  # zero thickness: facing edges coincide flat and stowed

@@ -142,3 +142,66 @@ def plate_area_outside_hub(pattern: CreasePattern) -> float:
     if info is None:
         raise ValueError("not a hub-wrap sheet (no construction data)")
     return float(sum(abs(polygon_area(pc.plate)) for pc in info.pieces if pc.kind != "hub" and len(pc.plate) >= 3))
+
+
+@dataclass(frozen=True)
+class BackingStrain:
+    """How far the stowed plates pull the bare backing between them.
+
+    Attributes
+    ----------
+    stretch : float, mm
+        Largest excess of the stowed distance between two facing plate edge points over the flat
+        width of backing between them (> 0: the backing would have to stretch there).
+    crease : int
+        Where it occurs (-1 when nothing was measured).
+    by_label : dict
+        Largest excess per crease class (``accordion``, ``bend``, ``radial`` ...), mm.
+    """
+
+    stretch: float
+    crease: int
+    by_label: dict
+
+
+def backing_strain(pattern: CreasePattern, *, samples: int = 5) -> BackingStrain:
+    """Compare, along every crease between two plates, the flat backing width with the stowed gap.
+
+    At ``samples`` points along each crease, the nearest points of the two plates (flat) are mapped
+    to the stowed state; the backing between them is inextensible, so their stowed distance must not
+    exceed their flat distance.
+    """
+    info = wrap_info(pattern)
+    if info is None:
+        raise ValueError("not a hub-wrap sheet (no construction data)")
+    v, cr, cpan = pattern.vertices, pattern.creases, pattern.crease_panels
+    worst, where = -math.inf, -1
+    by: dict[str, float] = {}
+    ts = (np.arange(samples) + 0.5) / samples
+    for c in range(pattern.n_creases):
+        a, b = (int(x) for x in cpan[c])
+        if a < 0 or b < 0:
+            continue
+        pa, pb = info.pieces[a].plate, info.pieces[b].plate
+        if len(pa) < 3 or len(pb) < 3:
+            continue
+        q = v[cr[c, 0]] + np.outer(ts, v[cr[c, 1]] - v[cr[c, 0]])
+        na = np.array([_nearest_on_polygon(x, pa) for x in q])
+        nb = np.array([_nearest_on_polygon(x, pb) for x in q])
+        sa = np.column_stack([na, np.zeros(len(na))]) @ info.stowed_poses[a][:3, :3].T + info.stowed_poses[a][:3, 3]
+        sb = np.column_stack([nb, np.zeros(len(nb))]) @ info.stowed_poses[b][:3, :3].T + info.stowed_poses[b][:3, 3]
+        ex = float((np.linalg.norm(sa - sb, axis=1) - np.linalg.norm(na - nb, axis=1)).max())
+        lb = info.labels[c]
+        by[lb] = max(by.get(lb, -math.inf), ex)
+        if ex > worst:
+            worst, where = ex, c
+    return BackingStrain(worst if where >= 0 else 0.0, where, by)
+
+
+def _nearest_on_polygon(q: FloatArray, poly: FloatArray) -> FloatArray:
+    a = np.asarray(poly, dtype=float)
+    b = np.roll(a, -1, axis=0)
+    ab = b - a
+    tt = np.clip(((q - a) * ab).sum(axis=1) / (ab * ab).sum(axis=1), 0.0, 1.0)
+    pts = a + tt[:, None] * ab
+    return pts[int(np.argmin(np.linalg.norm(pts - q, axis=1)))]

@@ -62,18 +62,16 @@ class ArmLayout:
     base: list[float]
 
 
-def _levels(spec: WrapSpec, p: float) -> tuple[list[tuple[float, float]], float, float]:
-    """Flat plate levels (Y0, Y1) of every ring band, the hub strip width and the accordion strip width."""
+def _levels(spec: WrapSpec, p: float, wh: float, wa: list[float]) -> list[tuple[float, float]]:
+    """Flat plate levels (Y0, Y1) of every ring band for a hub strip ``wh`` and accordion strips ``wa``."""
     h = spec.ring_height
-    wh = math.pi * p / 4.0
-    wa = math.pi * p / 2.0
     bands = []
     y = wh
     for k in range(1, spec.rings + 1):
         tall = h - (p / 2.0 if k == 1 else 0.0)
         bands.append((y, y + tall))
-        y += tall + wa
-    return bands, wh, wa
+        y += tall + (wa[k - 1] if k < spec.rings else 0.0)
+    return bands
 
 
 def _z_of(spec: WrapSpec, k: int, band: tuple[float, float], p: float, y: FloatArray) -> FloatArray:
@@ -129,9 +127,10 @@ def _cum(pts: FloatArray) -> FloatArray:
 def _point(pts: FloatArray, cum: FloatArray, sigma: FloatArray) -> FloatArray:
     """Points (k, 2) at arc lengths ``sigma`` (k,) along the polyline (extended straight past both ends)."""
     sigma = np.atleast_1d(np.asarray(sigma, dtype=float))
-    j = np.clip(np.searchsorted(cum, sigma, side="right") - 1, 0, len(pts) - 2)
     d = np.diff(pts, axis=0)
-    d = d / np.linalg.norm(d, axis=1)[:, None]
+    d /= np.sqrt((d * d).sum(axis=1))[:, None]
+    j = np.searchsorted(cum, sigma, side="right") - 1
+    j = np.minimum(np.maximum(j, 0), len(pts) - 2)
     return pts[j] + (sigma - cum[j])[:, None] * d[j]
 
 
@@ -187,39 +186,28 @@ def thick_sheet(spec: WrapSpec, t: float, tm: float, gap: float, *, tol: Toleran
         raise PatternError(f"hub-wrap: ring 1 cannot nest: the face stack of {r} layers at pitch {p:g} mm is "
                            f"{r * p:g} mm deep, over ring_height = {h:g} mm by {r * p - h + 1e-9:.3g} mm; use "
                            "thinner panels (panel_thickness), fewer rings or taller rings")
-    bands, wh, wa = _levels(spec, p)
     tn = hub.tan
     # first guess of the arm's taper: ring k reaches segment j when (j - 1) s < k h tan(pi/m)
     nseg = max(1, math.ceil(r * h * tn / hub.s) + 1)
     present: list[list[int]] = [[]] + [[k for k in range(1, r + 1) if (j - 1) * hub.s < k * h * tn]
                                        for j in range(1, nseg + 1)]
     present = [present[0]] + [pr for pr in present[1:] if pr]
+    # bare strips: nominal quarter / half circles, widened until the rings' shear along them needs no stretch
+    wh, wa = math.pi * p / 4.0, [math.pi * p / 2.0] * max(r - 1, 0)
     rings: list[_Ring] = []
     for _ in range(_ITER):
-        arm = _layout(present, r, p)
-        rings = []
-        for k in range(1, r + 1):
-            g, w = _paths(hub, arm, k, p, r)
-            gc, wc = _cum(g), _cum(w)
-            ring = _Ring(k, g, w, gc, wc, sum(1 for j in range(1, len(present)) if k in present[j]), 0.0, 0.0,
-                         bands[k - 1])
-            _place_u_turn(ring, hub, tn)
-            rings.append(ring)
-        new: list[list[int]] = [[]] + [[rg.k for rg in rings if _reaches(rg, j)] for j in range(1, len(present) + 1)]
-        while len(new) > 1 and not new[-1]:
-            new.pop()
-        if new == present:
+        bands = _levels(spec, p, wh, wa)
+        rings, present = _settle(spec, hub, present, bands, p)
+        wh2, wa2 = _strip_widths(hub, rings, p)
+        if abs(wh2 - wh) < 1e-6 and all(abs(a - b) < 1e-6 for a, b in zip(wa, wa2, strict=True)):
             break
-        present = [sorted(set(a) | set(b)) for a, b in zip(present + [[]] * (len(new) - len(present)),
-                                                             new + [[]] * (len(present) - len(new)), strict=True)]
-        while len(present) > 1 and not present[-1]:
-            present.pop()
+        wh, wa = max(wh, wh2), [max(a, b) for a, b in zip(wa, wa2, strict=True)]
     arm = _layout(present, r, p)
     pieces = _pieces(spec, hub, rings, arm, p, t, e_b, e_u, wh, wa, bands)
     y_out = bands[-1][1]
     outline = (hub.a + y_out) / math.cos(math.pi / m) * hub.u
     extra = {
-        "layer_pitch": p, "bend_setback": e_b, "u_turn_setback": e_u, "hub_strip": wh, "accordion_strip": wa,
+        "layer_pitch": p, "bend_setback": e_b, "u_turn_setback": e_u, "hub_strip": wh, "accordion_strips": list(wa),
         "tip_strip": [2.0 * rg.mu for rg in rings], "arm_rings": [list(x) for x in present[1:]],
         "arm_base": list(arm.base[1:]),
         "stowed_height": h,
@@ -231,36 +219,118 @@ def thick_sheet(spec: WrapSpec, t: float, tm: float, gap: float, *, tol: Toleran
     return pieces, outline, extra, gaps_fn
 
 
+def _settle(spec: WrapSpec, hub: Hub, present: list[list[int]], bands: list[tuple[float, float]],
+            p: float) -> tuple[list[_Ring], list[list[int]]]:
+    """Rings (paths, u-turn places, tip strips) and the arm taper, iterated until the taper is settled."""
+    r = spec.rings
+    rings: list[_Ring] = []
+    for _ in range(_ITER):
+        arm = _layout(present, r, p)
+        rings = []
+        for k in range(1, r + 1):
+            g, w = _paths(hub, arm, k, p, r)
+            ring = _Ring(k, g, w, _cum(g), _cum(w), sum(1 for j in range(1, len(present)) if k in present[j]),
+                         0.0, 0.0, bands[k - 1])
+            _place_u_turn(ring, rings[-1] if rings else None, hub, p)
+            rings.append(ring)
+        new = [[]] + [[rg.k for rg in rings if _reaches(rg, j)] for j in range(1, len(present) + 1)]
+        width = max(len(new), len(present))
+        merged = [sorted(set(a) | set(b)) for a, b in zip(present + [[]] * (width - len(present)),
+                                                          new + [[]] * (width - len(new)), strict=True)]
+        while len(merged) > 1 and not merged[-1]:
+            merged.pop()
+        if merged == present:  # the taper is settled (it only grows, so this ends)
+            break
+        present = merged
+    return rings, present
+
+
+def _top_view(rg: _Ring, hub: Hub, x: FloatArray) -> FloatArray:
+    """Stowed top-view points (k, 2) of ring rg's mid-surface at gore-0 flat positions ``x``."""
+    x = np.asarray(x, dtype=float)
+    out = np.empty((len(x), 2))
+    gs = x <= rg.xq
+    out[gs] = _point(rg.g, rg.gc, rg.xq - x[gs])
+    if (~gs).any():
+        out[~gs] = _point(rg.w, rg.wc, x[~gs] - rg.xq) @ _rot2(2.0 * math.pi / hub.m).T
+    return out
+
+
+def _strip_need(lower: _Ring | None, upper: _Ring, hub: Hub, p: float) -> float:
+    """Bare strip width below ring ``upper`` (the hub strip when ``lower`` is None) that lets facing plate
+    edges sit where the stowed rings put them.
+
+    Facing points across a strip (same gore coordinate x) are a chord ``d`` apart when stowed; with
+    no shear that is the layer spacing and the strip a quarter (hub) or half (accordion) circle. A
+    shear ``sigma = sqrt(d^2 - d0^2)`` along the fold is taken by a skewed loop of length
+    ``sqrt(arc^2 + sigma^2)``.
+    """
+    tn, s = hub.tan, hub.s
+    n = 129
+    if lower is None:  # hub edge (z = 0) to ring 1's lower edge (z = p/2), along the hub edge
+        x = np.linspace(0.0, s, n)
+        d = np.linalg.norm(_top_view(upper, hub, x) - (hub.P[0] + np.outer(x, hub.e[0])), axis=1)
+        arc, d0 = math.pi * p / 4.0, p / 2.0
+    else:
+        y = lower.band[1]
+        mu = max(lower.mu, upper.mu)
+        x = np.linspace(-y * tn + mu, s + y * tn - mu, n)
+        d = np.linalg.norm(_top_view(lower, hub, x) - _top_view(upper, hub, x), axis=1)
+        arc, d0 = math.pi * p / 2.0, p
+    sig2 = max(0.0, float((d**2).max()) - d0**2)
+    return math.sqrt(arc**2 + sig2)
+
+
+def _strip_widths(hub: Hub, rings: list[_Ring], p: float) -> tuple[float, list[float]]:
+    """Bare strip widths (hub, accordions) the settled rings need (see :func:`_strip_need`)."""
+    return _strip_need(None, rings[0], hub, p), [_strip_need(a, b, hub, p) for a, b in zip(rings[:-1], rings[1:],
+                                                                                            strict=True)]
+
+
 def _reaches(rg: _Ring, j: int) -> bool:
     """Ring reaches arm segment j (its tip passes the bend that starts it) at some height."""
     return (j < len(rg.gc) and rg.reach_g > rg.gc[j]) or (j < len(rg.wc) and rg.reach_w > rg.wc[j])
 
 
-def _place_u_turn(rg: _Ring, hub: Hub, tn: float) -> None:
-    """Choose the u-turn's flat position so that the hairpin tip needs the narrowest bare strip."""
+def _place_u_turn(rg: _Ring, lower: _Ring | None, hub: Hub, p: float) -> None:
+    """Choose the u-turn's flat position: the narrowest bare backing in all, tip strip plus the strip
+    that joins the ring to the one below it (or to the hub)."""
     from scipy.optimize import minimize_scalar
 
+    tn = hub.tan
     x0 = float((rg.g[0] - hub.P[0]) @ hub.e[0])  # aligned with the hub edge
 
-    def width(xq: float) -> float:
+    def bare(xq: float) -> float:
         rg.xq = float(xq)
         _tip_width(rg, hub, tn)
-        return rg.mu
+        return 2.0 * rg.mu + _strip_need(lower, rg, hub, p)
 
     span = hub.s
-    res = minimize_scalar(width, bounds=(x0 - span, x0 + span), method="bounded", options={"xatol": 1e-6})
-    width(float(res.x))
+    grid = np.linspace(x0 - span / 2.0, x0 + span, 25)
+    best = float(grid[int(np.argmin([bare(x) for x in grid]))])
+    step = float(grid[1] - grid[0])
+    res = minimize_scalar(bare, bounds=(best - step, best + step), method="bounded", options={"xatol": 1e-7})
+    bare(float(res.x) if res.fun <= bare(best) else best)
 
 
 def _tip_width(rg: _Ring, hub: Hub, tn: float) -> None:
-    """Half width of the bare tip strip: wide enough for the tip plates' distance at every height."""
+    """Half width of the bare tip strip: wide enough for the tip plates' distance at every height.
+
+    The two tip plates face each other across the hairpin, ``delta`` apart normal to the arm, and
+    possibly skewed along it; the backing joining them is a half circle over ``delta`` drawn out
+    along the skew: ``sqrt((pi delta / 2)^2 + skew^2)``.
+    """
     ys = np.linspace(rg.band[0], rg.band[1], _SAMPLES)
     mu = 0.0
     for _ in range(50):
         sg = rg.xq + ys * tn - mu
         sw = np.maximum(hub.s + ys * tn - mu - rg.xq, 0.0)
-        d = float(np.linalg.norm(_point(rg.g, rg.gc, sg) - _point(rg.w, rg.wc, sw), axis=1).max())
-        need = math.pi * d / 4.0
+        gp = _point(rg.g, rg.gc, sg)
+        gd = _point(rg.g, rg.gc, sg + 1.0) - gp
+        diff = gp - _point(rg.w, rg.wc, sw)
+        delta = np.abs(gd[:, 0] * diff[:, 1] - gd[:, 1] * diff[:, 0])
+        skew2 = np.maximum((diff**2).sum(axis=1) - delta**2, 0.0)
+        need = 0.5 * float(np.sqrt((math.pi * delta / 2.0) ** 2 + skew2).max())
         if need <= mu + 1e-9:
             break
         mu = need
@@ -285,7 +355,7 @@ def _wedge(poly: FloatArray, tn: float, s: float, inset: float) -> FloatArray:
 
 
 def _pieces(spec: WrapSpec, hub: Hub, rings: list[_Ring], arm: ArmLayout, p: float, t: float, e_b: float,
-            e_u: float, wh: float, wa: float, bands: list[tuple[float, float]]) -> list[WrapPiece]:
+            e_u: float, wh: float, wa: list[float], bands: list[tuple[float, float]]) -> list[WrapPiece]:
     m, r = spec.sides, spec.rings
     tn, s = hub.tan, hub.s
     rot1 = _rot2(2.0 * math.pi / m)
@@ -293,8 +363,8 @@ def _pieces(spec: WrapSpec, hub: Hub, rings: list[_Ring], arm: ArmLayout, p: flo
     for rg in rings:
         k = rg.k
         y0, y1 = rg.band
-        ye0 = y0 - (wh / 2.0 if k == 1 else wa / 2.0)
-        ye1 = y1 + (wa / 2.0 if k < r else 0.0)
+        ye0 = y0 - (wh / 2.0 if k == 1 else wa[k - 2] / 2.0)
+        ye1 = y1 + (wa[k - 1] / 2.0 if k < r else 0.0)
         n = rg.nseg
         left, right = -ye1 * tn - 1.0, s + ye1 * tn + 1.0  # just beyond the two radials
         xg = [rg.xq - rg.gc[j] for j in range(1, n + 1)]
