@@ -117,8 +117,8 @@ def _check_wrap_flagship(s: dict, files: list[Path]) -> None:
     # the stowed state is proven: real distances measured (not a bound), no penetration
     assert m["min_clearance_mm"] >= 0.0 and not m.get("min_clearance_lower_bound")
     # closed form of the zero-thickness outline: 2 (a + r h) / cos(pi/m) = 2000 mm (outer_diameter);
-    # the thick sheet adds its bare backing strips, so it is a little larger (CRC tables, regular polygons)
-    assert 2000.0 < m["deployed_diameter_mm"] < 2100.0
+    # the thick sheet adds its bare backing strips (at most 15 % here), so it is larger (CRC tables)
+    assert 2000.0 < m["deployed_diameter_mm"] < 2300.0
     assert m["diameter_ratio"] == pytest.approx(m["deployed_diameter_mm"] / m["stowed_diameter_mm"], rel=1e-12)
     assert m["diameter_ratio"] >= 4.0
     # volume conservation: the stowed radius is not below sqrt(R_h^2 + A t / (pi H)) (our derivation)
