@@ -76,7 +76,8 @@ def wrap_fold_path_stage(res: BuildResult, rec: dict[str, Any], states: int) -> 
     rec["note"] = (f"stowed state from the construction (largest fold {_deg(reach):.1f} deg); {len(path.states)} "
                    "states of the least-misfit deployment")
     last = comp.rows()[-1]
-    if float(res.pattern and wrap_info(res.pattern).params.get("panel_thickness", 0.0)) > 0:
+    info = wrap_info(res.pattern)
+    if info is not None and float(info.params.get("panel_thickness", 0.0)) > 0:
         end = (f"; in the stowed state the bare backing strips bend (the thick sheet's panels include them), "
                f"so the panels there carry a vertex misfit up to {last['max_misfit_deg']:.3g} deg and hinge "
                f"play up to {last['max_play_mm']:.3g} mm taken up by the strips")
