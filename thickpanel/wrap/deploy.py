@@ -20,6 +20,10 @@ Method (our own; stated in reports as :data:`METHOD`):
    fold, a local least-squares optimum, not a proven global one;
 3. the end states are exact: identity poses at t = 0, the construction's stowed poses at t = 1.
 
+Limitation: every crease moves at the same fraction of its stowed fold, which swings long wrapped
+arms far from any physical deployment; the figures are what *this* path needs, an upper estimate,
+not the least compliance a sequenced deployment (arms unwrapped first, then the accordions) needs.
+
 Compliance figures per sampled state (:class:`WrapCompliance`):
 
 * per-vertex angular misfit: rotation angle of the loop product of the hinge rotations round each
