@@ -100,6 +100,15 @@ def wrap_metrics_into(res: BuildResult) -> None:
         t = float(th)
     res.metrics.update(wrap_metrics(res.pattern, res.plan, thickness=t))
     res.metrics["safety_caution"] = WRAP_CAUTION
+    comp = (getattr(res.path, "meta", None) or {}).get("compliance") if res.path is not None else None
+    if comp is not None:
+        res.metrics["compliance"] = comp.rows()  # per sampled state: t, misfit (deg), play (mm)
+    sheets = res.plan.meta.get("sheet_parts", ()) if res.plan is not None else ()
+    for sp in sheets:
+        if sp.attrs.get("flat_only"):
+            res.check(f"{sp.name} membrane", "info", f"{sp.name} ({sp.z1 - sp.z0:g} mm {sp.material}) is exported "
+                      "flat with a DXF cut sheet marking where each plate is bonded; it is flexible, not rigid, so "
+                      "it is left out of the stowed (folded) assemblies")
 
 
 def _deg(x: float) -> float:
