@@ -105,8 +105,8 @@ def wrap_section(res: Any) -> str:
         parts.append(f"<p>{_e(comp.summary())}.</p><p class=\"note\">Method: {_e(comp.method)}. Vertex misfit: "
                      "rotation angle of the loop product of the hinge rotations round each interior vertex; hinge "
                      "play: largest mismatch of a hinge's end points as carried by its two panels. The path is a "
-                     "simple one (every fold at the same fraction of its stowed angle, then relaxed): its figures are what "
-                     "this path needs, not the least any deployment could need; long wrapped arms make them "
+                     "simple one (every fold at the same fraction of its stowed angle, then relaxed): its figures "
+                     "are what this path needs, not the least any deployment could need; long wrapped arms make them "
                      "large.</p>")
         parts.append(_table(["t", "largest vertex misfit (deg)", "largest hinge play (mm)", "RMS hinge play (mm)"],
                             [[r["t"], r["max_misfit_deg"], r["max_play_mm"], r["rms_play_mm"]] for r in comp.rows()]))
