@@ -12,7 +12,7 @@ Method (our own; stated in reports as :data:`METHOD`):
    of its stowed fold), and panel poses composed from them along a breadth-first spanning tree of
    the panel graph rooted at the hub (:func:`thickpanel.poses.compose_poses`); the loops the tree
    leaves open carry the misfit;
-2. a damped Gauss-Newton least-squares relaxation of the panel poses (hub fixed, every panel
+2. a Levenberg-Marquardt least-squares relaxation of the panel poses (hub fixed, every panel
    rigid, 6 unknowns per panel) that minimises the mismatch of every hinge's two end points as
    carried by its two panels, plus a weak pull (weight :data:`PULL`, per panel: centroid and two
    points one panel size away) towards the composed poses of step 1, so the relaxed state stays
@@ -60,13 +60,15 @@ __all__ = ["WrapCompliance", "stowed_fold_path", "measured_folds", "vertex_misfi
            "METHOD", "PULL", "WRAP_CAUTION"]
 
 PULL = 0.05  # dimensionless weight of the pull towards the interpolated poses (our own choice)
-_GN_ITER = 12  # Gauss-Newton iterations per state
-_LM = 1e-6  # relative Levenberg-Marquardt damping
+_GN_ITER = 25  # Levenberg-Marquardt iterations per state
+_LM = 1e-4  # relative Levenberg-Marquardt damping at the start
+_LM_MIN = 1e-9  # its floor
+_LM_TRIES = 8  # damping increases (x10) tried before a state counts as converged
 _STEP_STOP = 1e-9  # x sheet size: increment below which the relaxation has converged
 _COST_RTOL = 1e-4  # relative decrease of the squared residual below which it has converged
 
 METHOD = ("fold angles interpolated linearly from 0 to their stowed values and composed along a "
-          "breadth-first spanning tree from the hub, then a damped Gauss-Newton least-squares relaxation "
+          "breadth-first spanning tree from the hub, then a Levenberg-Marquardt least-squares relaxation "
           "of the rigid panel poses (hub fixed) minimising hinge end-point mismatch with a weak pull "
           f"(weight {PULL:g}) towards the interpolated poses; end states exact (deployed = identity, "
           "stowed = the construction's poses)")
@@ -273,40 +275,62 @@ class _Relax:
             vals.append(np.full(len(idx), sign))
         return rows, cols, vals
 
+    def _residual(self, poses: FloatArray, gx: FloatArray) -> tuple[FloatArray, tuple[FloatArray, ...]]:
+        xa = self._apply(poses, self.pa, self.q)
+        xb = self._apply(poses, self.pb, self.q)
+        xg = self._apply(poses, self.guide_panel, self.guide_q)
+        return np.concatenate([(xa - xb).ravel(), PULL * (xg - gx).ravel()]), (xa, xb, xg)
+
+    def _jacobian(self, xs: tuple[FloatArray, ...], n_rows: int, n: int) -> sp.csr_matrix:
+        xa, xb, xg = xs
+        parts = [self._jac(xa, self.pa, 1.0, 0), self._jac(xb, self.pb, -1.0, 0),
+                 self._jac(xg, self.guide_panel, PULL, 3 * len(xa))]
+        rows = np.concatenate([np.concatenate(p[0]) for p in parts])
+        cols = np.concatenate([np.concatenate(p[1]) for p in parts])
+        vals = np.concatenate([np.concatenate(p[2]) for p in parts])
+        return sp.csr_matrix((vals, (rows, cols)), shape=(n_rows, n))
+
+    def _step(self, poses: FloatArray, dz: FloatArray) -> FloatArray:
+        zz = dz.reshape(-1, 6)
+        rot = Rotation.from_rotvec(zz[:, :3]).as_matrix()
+        out = poses.copy()
+        out[self.free, :3, :3] = rot @ poses[self.free, :3, :3]
+        out[self.free, :3, 3] = np.einsum("kij,kj->ki", rot, poses[self.free, :3, 3]) + zz[:, 3:]
+        return out
+
     def solve(self, poses: FloatArray, guide: FloatArray) -> FloatArray:
-        """Relaxed poses starting from ``poses`` (usually ``guide``)."""
+        """Relaxed poses starting from ``poses`` (usually ``guide``): Levenberg-Marquardt, a step
+        is kept only when it lowers the squared residual, so the result is never worse than the start."""
         n = 6 * len(self.free)
         if n == 0:
             return poses
         gx = self._apply(guide, self.guide_panel, self.guide_q)
-        cost_prev = math.inf
+        r, xs = self._residual(poses, gx)
+        cost = float(r @ r)
+        mu = _LM
+        eye = sp.identity(n, format="csc")
         for _ in range(_GN_ITER):
-            xa = self._apply(poses, self.pa, self.q)
-            xb = self._apply(poses, self.pb, self.q)
-            xg = self._apply(poses, self.guide_panel, self.guide_q)
-            r = np.concatenate([(xa - xb).ravel(), PULL * (xg - gx).ravel()])
-            n1 = 3 * len(xa)
-            parts = [self._jac(xa, self.pa, 1.0, 0), self._jac(xb, self.pb, -1.0, 0),
-                     self._jac(xg, self.guide_panel, PULL, n1)]
-            rows = np.concatenate([np.concatenate(p[0]) for p in parts])
-            cols = np.concatenate([np.concatenate(p[1]) for p in parts])
-            vals = np.concatenate([np.concatenate(p[2]) for p in parts])
-            J = sp.csr_matrix((vals, (rows, cols)), shape=(len(r), n))
+            J = self._jacobian(xs, len(r), n)
             N = (J.T @ J).tocsc()
+            g = J.T @ r
             scale = float(N.diagonal().max()) or 1.0
-            lu = spla.splu(N + sp.identity(n, format="csc") * (_LM * scale), permc_spec="MMD_AT_PLUS_A",
-                           diag_pivot_thresh=0.0, options={"SymmetricMode": True})
-            dz = lu.solve(-(J.T @ r))
-            zz = dz.reshape(-1, 6)
-            rot = Rotation.from_rotvec(zz[:, :3]).as_matrix()
-            out = poses.copy()
-            out[self.free, :3, :3] = rot @ poses[self.free, :3, :3]
-            out[self.free, :3, 3] = np.einsum("kij,kj->ki", rot, poses[self.free, :3, 3]) + zz[:, 3:]
-            poses = out
-            cost = float(r @ r)
-            if float(np.abs(dz).max()) < _STEP_STOP * self.size or cost_prev - cost < _COST_RTOL * cost_prev:
+            for _try in range(_LM_TRIES):
+                lu = spla.splu(N + eye * (mu * scale), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                               options={"SymmetricMode": True})
+                dz = lu.solve(-g)
+                trial = self._step(poses, dz)
+                r2, xs2 = self._residual(trial, gx)
+                cost2 = float(r2 @ r2)
+                if cost2 < cost:
+                    break
+                mu *= 10.0
+            else:
+                break  # no step lowers the residual: converged as far as the damping allows
+            done = cost - cost2 < _COST_RTOL * cost or float(np.abs(dz).max()) < _STEP_STOP * self.size
+            poses, r, xs, cost = trial, r2, xs2, cost2
+            mu = max(mu / 10.0, _LM_MIN)
+            if done:
                 break
-            cost_prev = cost
         # re-orthonormalise (round-off of repeated products)
         u, _, vt = np.linalg.svd(poses[:, :3, :3])
         poses[:, :3, :3] = u @ vt
