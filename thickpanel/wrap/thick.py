@@ -238,7 +238,7 @@ def _settle(spec: WrapSpec, hub: Hub, present: list[list[int]], bands: list[tupl
                          0.0, 0.0, bands[k - 1])
             _place_u_turn(ring, rings[-1] if rings else None, hub, p, (warm or {}).get(k))
             rings.append(ring)
-        new = [[]] + [[rg.k for rg in rings if _reaches(rg, j)] for j in range(1, len(present) + 1)]
+        new: list[list[int]] = [[]] + [[rg.k for rg in rings if _reaches(rg, j)] for j in range(1, len(present) + 1)]
         width = max(len(new), len(present))
         merged = [sorted(set(a) | set(b)) for a, b in zip(present + [[]] * (width - len(present)),
                                                           new + [[]] * (width - len(new)), strict=True)]
