@@ -184,3 +184,11 @@ def test_zero_thickness_backing_is_exact() -> None:
 
     strain = backing_strain(_zero(6, 4, 100.0, 100.0))
     assert abs(strain.stretch) < 1e-9  # zero thickness: facing edges coincide flat and stowed
+
+
+@pytest.mark.parametrize("m,r", [(4, 3), (8, 6), (12, 5)])
+def test_thick_backing_never_stretches_other_hubs(m: int, r: int) -> None:
+    from thickpanel.wrap.check import backing_strain
+
+    cp = make_layout("hub-wrap", sides=m, rings=r, ring_height=60.0, hub_circumradius=100.0, panel_thickness=1.0)
+    assert backing_strain(cp).stretch <= 1e-6

@@ -45,7 +45,8 @@ from .zero import WrapPiece, ccw
 __all__ = ["thick_sheet", "ArmLayout"]
 
 
-_ITER = 8  # presence / tip-width fixed-point iterations
+_ITER = 8  # arm-taper fixed-point iterations
+_STRIP_ITER = 12  # strip-width fixed-point iterations
 _SAMPLES = 65  # heights sampled per ring for tip widths and misfits
 _MIN_PLATE = 1e-3  # mm^2: smaller plates are dropped (their region stays bare backing)
 
@@ -195,13 +196,17 @@ def thick_sheet(spec: WrapSpec, t: float, tm: float, gap: float, *, tol: Toleran
     # bare strips: nominal quarter / half circles, widened until the rings' shear along them needs no stretch
     wh, wa = math.pi * p / 4.0, [math.pi * p / 2.0] * max(r - 1, 0)
     rings: list[_Ring] = []
-    for _ in range(_ITER):
+    shortfall = 0.0
+    warm: dict[int, float] | None = None
+    for it in range(_STRIP_ITER + 1):
         bands = _levels(spec, p, wh, wa)
-        rings, present = _settle(spec, hub, present, bands, p)
+        rings, present = _settle(spec, hub, present, bands, p, warm)
+        warm = {rg.k: rg.xq for rg in rings}
         wh2, wa2 = _strip_widths(hub, rings, p)
-        if abs(wh2 - wh) < 1e-6 and all(abs(a - b) < 1e-6 for a, b in zip(wa, wa2, strict=True)):
+        shortfall = max([wh2 - wh] + [b - a for a, b in zip(wa, wa2, strict=True)])
+        if shortfall <= 1e-6 or it == _STRIP_ITER:  # the last pass keeps bands and strips consistent
             break
-        wh, wa = max(wh, wh2), [max(a, b) for a, b in zip(wa, wa2, strict=True)]
+        wh, wa = max(wh, wh2), [max(a, b) for a, b in zip(wa, wa2, strict=True)]  # widths only grow
     arm = _layout(present, r, p)
     pieces = _pieces(spec, hub, rings, arm, p, t, e_b, e_u, wh, wa, bands)
     y_out = bands[-1][1]
@@ -210,7 +215,7 @@ def thick_sheet(spec: WrapSpec, t: float, tm: float, gap: float, *, tol: Toleran
         "layer_pitch": p, "bend_setback": e_b, "u_turn_setback": e_u, "hub_strip": wh, "accordion_strips": list(wa),
         "tip_strip": [2.0 * rg.mu for rg in rings], "arm_rings": [list(x) for x in present[1:]],
         "arm_base": list(arm.base[1:]),
-        "stowed_height": h,
+        "stowed_height": h, "strip_shortfall": max(shortfall, 0.0),
     }
 
     def gaps_fn(cp: CreasePattern, ordered: list[WrapPiece], labels: list[str]) -> FloatArray:
@@ -220,7 +225,7 @@ def thick_sheet(spec: WrapSpec, t: float, tm: float, gap: float, *, tol: Toleran
 
 
 def _settle(spec: WrapSpec, hub: Hub, present: list[list[int]], bands: list[tuple[float, float]],
-            p: float) -> tuple[list[_Ring], list[list[int]]]:
+            p: float, warm: dict[int, float] | None = None) -> tuple[list[_Ring], list[list[int]]]:
     """Rings (paths, u-turn places, tip strips) and the arm taper, iterated until the taper is settled."""
     r = spec.rings
     rings: list[_Ring] = []
@@ -231,9 +236,9 @@ def _settle(spec: WrapSpec, hub: Hub, present: list[list[int]], bands: list[tupl
             g, w = _paths(hub, arm, k, p, r)
             ring = _Ring(k, g, w, _cum(g), _cum(w), sum(1 for j in range(1, len(present)) if k in present[j]),
                          0.0, 0.0, bands[k - 1])
-            _place_u_turn(ring, rings[-1] if rings else None, hub, p)
+            _place_u_turn(ring, rings[-1] if rings else None, hub, p, (warm or {}).get(k))
             rings.append(ring)
-        new = [[]] + [[rg.k for rg in rings if _reaches(rg, j)] for j in range(1, len(present) + 1)]
+        new: list[list[int]] = [[]] + [[rg.k for rg in rings if _reaches(rg, j)] for j in range(1, len(present) + 1)]
         width = max(len(new), len(present))
         merged = [sorted(set(a) | set(b)) for a, b in zip(present + [[]] * (width - len(present)),
                                                           new + [[]] * (width - len(new)), strict=True)]
@@ -271,14 +276,33 @@ def _strip_need(lower: _Ring | None, upper: _Ring, hub: Hub, p: float) -> float:
         x = np.linspace(0.0, s, n)
         d = np.linalg.norm(_top_view(upper, hub, x) - (hub.P[0] + np.outer(x, hub.e[0])), axis=1)
         arc, d0 = math.pi * p / 4.0, p / 2.0
+        sig2 = max(0.0, float((d**2).max()) - d0**2)
+        return math.sqrt(arc**2 + sig2)
     else:
-        y = lower.band[1]
-        mu = max(lower.mu, upper.mu)
-        x = np.linspace(-y * tn + mu, s + y * tn - mu, n)
-        d = np.linalg.norm(_top_view(lower, hub, x) - _top_view(upper, hub, x), axis=1)
+        yl, yu = lower.band[1], upper.band[0]
+        l_lo, l_hi = -yl * tn + lower.mu, s + yl * tn - lower.mu  # plate edges along the strip
+        u_lo, u_hi = -yu * tn + upper.mu, s + yu * tn - upper.mu
+        lo, hi = max(l_lo, u_lo), min(l_hi, u_hi)
+        # the chord peaks where one ring has turned a bend and the other not yet: sample the bends too
+        bends = np.concatenate([np.concatenate([rg.xq - rg.gc[1:], rg.xq + rg.wc[1:], [rg.xq]])
+                                for rg in (lower, upper)])
+        x = np.concatenate([np.linspace(lo, hi, n), bends - 1e-6, bends + 1e-6])
+        x = x[(x >= lo) & (x <= hi)]
+        d = np.linalg.norm(_top_view(lower, hub, x) - _top_view(upper, hub, x), axis=1) if len(x) else np.zeros(1)
         arc, d0 = math.pi * p / 2.0, p
-    sig2 = max(0.0, float((d**2).max()) - d0**2)
-    return math.sqrt(arc**2 + sig2)
+        # where one plate runs on past the other's tip, its edge points face bare backing: the strip
+        # must still span, straight, from the other's tip corner to every such point
+        extra = 0.0
+        for a_end, b_from, b_to, a_ring, b_ring in ((l_lo, u_lo, l_lo, lower, upper), (u_lo, l_lo, u_lo, upper, lower),
+                                                    (l_hi, l_hi, u_hi, lower, upper), (u_hi, u_hi, l_hi, upper, lower)):
+            if b_to - b_from <= 1e-9:
+                continue
+            xb = np.linspace(b_from, b_to, 33)
+            pa = _top_view(a_ring, hub, np.array([a_end]))
+            dd = np.linalg.norm(_top_view(b_ring, hub, xb) - pa, axis=1)
+            extra = max(extra, float(np.max(dd**2 - (xb - a_end) ** 2)))
+        sig2 = max(0.0, float((d**2).max()) - d0**2)
+        return max(math.sqrt(arc**2 + sig2), math.sqrt(max(extra, 0.0)))
 
 
 def _strip_widths(hub: Hub, rings: list[_Ring], p: float) -> tuple[float, list[float]]:
@@ -292,7 +316,7 @@ def _reaches(rg: _Ring, j: int) -> bool:
     return (j < len(rg.gc) and rg.reach_g > rg.gc[j]) or (j < len(rg.wc) and rg.reach_w > rg.wc[j])
 
 
-def _place_u_turn(rg: _Ring, lower: _Ring | None, hub: Hub, p: float) -> None:
+def _place_u_turn(rg: _Ring, lower: _Ring | None, hub: Hub, p: float, start: float | None = None) -> None:
     """Choose the u-turn's flat position: the narrowest bare backing in all, tip strip plus the strip
     that joins the ring to the one below it (or to the hub)."""
     from scipy.optimize import minimize_scalar
@@ -306,7 +330,10 @@ def _place_u_turn(rg: _Ring, lower: _Ring | None, hub: Hub, p: float) -> None:
         return 2.0 * rg.mu + _strip_need(lower, rg, hub, p)
 
     span = hub.s
-    grid = np.linspace(x0 - span / 2.0, x0 + span, 25)
+    if start is None:
+        grid = np.linspace(x0 - span / 2.0, x0 + span, 25)
+    else:  # warm start from the previous pass (the strips changed a little)
+        grid = np.linspace(start - span / 16.0, start + span / 16.0, 5)
     best = float(grid[int(np.argmin([bare(x) for x in grid]))])
     step = float(grid[1] - grid[0])
     res = minimize_scalar(bare, bounds=(best - step, best + step), method="bounded", options={"xatol": 1e-7})
@@ -318,7 +345,9 @@ def _tip_width(rg: _Ring, hub: Hub, tn: float) -> None:
 
     The two tip plates face each other across the hairpin, ``delta`` apart normal to the arm, and
     possibly skewed along it; the backing joining them is a half circle over ``delta`` drawn out
-    along the skew: ``sqrt((pi delta / 2)^2 + skew^2)``.
+    along the skew: ``sqrt((pi delta / 2)^2 + skew^2)``. In the flat sheet the strip bends round the
+    radial corner, so its straight width there is ``2 mu cos(pi/m)``, which must also reach the
+    stowed distance of the tip plates.
     """
     ys = np.linspace(rg.band[0], rg.band[1], _SAMPLES)
     mu = 0.0
@@ -330,7 +359,9 @@ def _tip_width(rg: _Ring, hub: Hub, tn: float) -> None:
         diff = gp - _point(rg.w, rg.wc, sw)
         delta = np.abs(gd[:, 0] * diff[:, 1] - gd[:, 1] * diff[:, 0])
         skew2 = np.maximum((diff**2).sum(axis=1) - delta**2, 0.0)
-        need = 0.5 * float(np.sqrt((math.pi * delta / 2.0) ** 2 + skew2).max())
+        # and the flat chord across the radial corner (2 mu cos(pi/m)) must reach the stowed distance
+        chord = np.sqrt((diff**2).sum(axis=1)) / math.cos(math.pi / hub.m)
+        need = 0.5 * float(np.maximum(np.sqrt((math.pi * delta / 2.0) ** 2 + skew2), chord).max())
         if need <= mu + 1e-9:
             break
         mu = need
@@ -378,6 +409,8 @@ def _pieces(spec: WrapSpec, hub: Hub, rings: list[_Ring], arm: ArmLayout, p: flo
         for j in range(1, n + 1):
             zones.append((xw[j - 1], xw[j] if j < n else right, e_b, e_b if j < n else 0.0, "w", j))
         for xa, xb, sa, sb, side, j in zones:
+            if xb - xa <= 1e-9:  # a bend beyond the radial (only the other side of the hairpin reaches it)
+                continue
             panel = _wedge(_band_box(xa, xb, ye0, ye1), tn, s, 0.0)
             plate = _wedge(_band_box(xa + sa, xb - sb, y0, y1), tn, s, rg.mu)
             if len(panel) < 3 or abs(polygon_area(panel)) < _MIN_PLATE:
