@@ -4,7 +4,9 @@ floor: the same number of plain polygon prisms made with raw OCP and written to 
 Cases (one table): a Miura plan (translated copies), the same Miura with jittered inner vertices
 (no two panels congruent) and a log-spiral plan, ``tapered`` (bevel cuts on every panel) and
 ``plain`` (the panels of a ring are rotated copies). Routes: ``build_parts(share="rigid")`` (default),
-``share="translation"`` (prototype sharing by translation only).
+``share="translation"`` (prototype sharing by translation only); a route may add ``+profile``
+(``validate="profile"``: plain panel prisms checked through their outline face and the volume
+identity instead of a whole-solid BRepCheck, the dominant cost when no two panels are alike).
 
 Run: ``.venv/bin/python bench/bench_solids.py [--reps 3 --cases miura,jittered,spiral]``. Prints
 median times and the ratio to the floor (target: at most 3x). Not part of the test suite.
@@ -70,7 +72,9 @@ def ours(plan, path: Path, share: str, options: dict) -> tuple[float, float, flo
     Returns total s, build s, STEP s, MB, parts, distinct panel prototypes.
     """
     t0 = time.perf_counter()
-    ps = build_parts(plan, hinge_style="knuckle", hinge_options=options, share=share)
+    share, _, validate = share.partition("+")  # e.g. "rigid+profile": validate plain prisms by profile
+    ps = build_parts(plan, hinge_style="knuckle", hinge_options=options, share=share,
+                     validate=validate or "full")
     t1 = time.perf_counter()
     data = step_bytes([(p.name, p.pieces, None) for p in ps.parts], name="bench")
     write_atomic(path, data)
@@ -116,7 +120,8 @@ def main() -> None:
     ap.add_argument("--rings", type=int, default=20)
     ap.add_argument("--reps", type=int, default=3)
     ap.add_argument("--cases", default="miura,jittered,spiral,spiral-plain")
-    ap.add_argument("--routes", default="rigid,translation")
+    ap.add_argument("--routes", default="rigid,translation",
+                    help="share modes, each optionally +profile (validate='profile'), e.g. rigid+profile")
     args = ap.parse_args()
     routes = args.routes.split(",")
     rows = []

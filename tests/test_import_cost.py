@@ -38,3 +38,13 @@ def test_check_of_miura_reference_loads_no_cadquery() -> None:
     assert got["OCP"] is True
     assert {m: got[m] for m in ("cadquery", "vtk", "matplotlib")} == {"cadquery": False, "vtk": False,
                                                                       "matplotlib": False}
+
+
+def test_loading_a_design_and_planning_load_no_numba() -> None:
+    # numba (the clearance sweep's SAT kernel, thickpanel.sat_kernel) loads with the first sweep only:
+    # loading a design, the fold path and a thickness plan do not need it.
+    got = _loaded("from thickpanel.design import load_design\nfrom thickpanel.build import run_pipeline\n"
+                  "r = run_pipeline(load_design('examples/miura-reference.toml'), command='check', "
+                  "stages=('pattern', 'foldability', 'rigidity', 'fold path', 'method'))\n"
+                  "assert r.plan is not None\nimport sys\nassert 'numba' not in sys.modules, 'numba loaded'")
+    assert got == {m: False for m in HEAVY}

@@ -13,6 +13,7 @@ from thickpanel.thickness import MethodAdvice, available_methods, make_plan, met
 from thickpanel.thickness.common import edge_cut, inradius, panel_thicknesses, vertex_clearance_radius
 from thickpanel.thickness.layers import clip_convex, layer_order
 from thickpanel.thickness.offset_panel import reference_height
+from thickpanel.tolerances import Tolerances
 
 METHODS = ["hinge-shift", "membrane-gap", "offset-crease", "offset-panel", "plain", "tapered", "wrap-backing"]
 
@@ -225,6 +226,7 @@ def test_methods_for_with_sweep_ranks_clear_methods_first():
     assert by["tapered"].min_clearance > 0
     assert by["plain"].min_clearance < 0 and "collides" in by["plain"].reason
     applicable = [a.method for a in adv if a.applies]
-    clear = [m for m in applicable if by[m].min_clearance >= 0]
+    # touching (within tol.contact) is clear, as in the clearance sweep's touching policy
+    clear = [m for m in applicable if by[m].min_clearance >= -Tolerances().contact]
     assert applicable[: len(clear)] == clear
     assert math.isnan(methods_for(cpm, math.radians(100), thickness=1.0, path=path)[0].min_clearance)

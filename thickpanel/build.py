@@ -23,6 +23,7 @@ from typing import Any
 
 import numpy as np
 
+from .build_figures import export_figures, hardware_for, hinge_reach
 from .build_result import (
     ORDER,
     SLACK_MAX_DEG,
@@ -44,8 +45,9 @@ from .build_wrap import (
     wrap_rigidity_stage,
 )
 from .design import Design, suggest
-from .envelope import diameter, packing_ratio, principal_frame
-from .errors import DesignFileError, HingeError, ThickpanelError
+from .envelope import diameter
+from .errors import DesignFileError, HingeError, ThicknessError, ThickpanelError
+from .figures import array_figures, clearance_figures
 from .outputs import prepare_out_dir, remove_outputs
 
 log = logging.getLogger("thickpanel")
@@ -127,6 +129,8 @@ def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: 
         _method(run, cp, thickness, target)
     if "clearance" in want:
         _clearance(run)
+    if "method" in want:
+        hinge_reach(res)
     _envelope(res)
     if "solids" in want:
         _solids(run)
@@ -158,7 +162,7 @@ def _foldability(run: _Run, cp: Any) -> None:
     fn, why = _api("foldability", "check_foldability")
     if fn is None:
         run.skip("foldability", "not available", why)
-        res.check("flat-foldable vertices", "n/a", why)
+        res.check("flat-foldable vertices", "could not run", why)
         return
     with run.stage("foldability") as rec:
         rep = fn(cp)
@@ -188,7 +192,7 @@ def _rigidity(run: _Run, cp: Any) -> None:
     fn, why = _api("kinematics", "rigid_foldability")
     if fn is None:
         run.skip("rigidity", "not available", why)
-        res.check("rigid-foldable", "n/a", why)
+        res.check("rigid-foldable", "could not run", why)
         return
     with run.stage("rigidity") as rec:
         v = fn(cp)
@@ -241,7 +245,7 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
     fn, why = _api("kinematics", "fold_path")
     if fn is None:
         run.skip("fold path", "not available", why)
-        res.check("fold path", "n/a", why)
+        res.check("fold path", "could not run", why)
         return
     kw: dict[str, Any] = {"target": target, "n_states": d.fold.states}
     if run.progress is not None:  # the solver calls stop_when on every sampled state: a progress tick
@@ -290,55 +294,58 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
     make, why2 = _api("thickness", "make_plan")
     if make is None or advise is None:
         run.skip("method", "not available", why or why2)
-        res.check("thickness method", "n/a", why or why2)
+        res.check("thickness method", "could not run", why or why2)
         return
+    from .thickness import method_function, refuted
+
     with run.stage("method") as rec:
         built: dict[str, Any] = {}  # plans advice built with default options, reused below
-        advice = list(advise(cp, target, thickness=thickness, path=res.path, plans=built))
-        res.advice = advice
+        advice = list(advise(cp, target, thickness=thickness, path=res.path, plans=built, verdict=res.rigid))
         names = [a.method for a in advice]
-        for a in advice:
-            res.check(f"method {a.method}", "info" if a.applies else "n/a",
-                      ("applies" if a.applies else "does not apply") + (f": {a.reason}" if a.reason else ""))
         name = d.method.name
-        if name == "auto":
-            usable = [a for a in advice if a.applies]
-            if not usable:
-                rec["status"] = "failed"
-                rec["note"] = "no thickness method applies"
-                res.check("thickness method", "fail", "no method applies: " +
-                          "; ".join(f"{a.method}: {a.reason}" for a in advice))
-                run.blocked = "no thickness method applies"
-                return
-            name = usable[0].method
-        elif name not in names:
+        if name != "auto" and name not in names:
             raise DesignFileError(f"[method] name = {name!r} is not a thickness method{suggest(name, names)} "
                                   f"(available: auto, {', '.join(names)})")
-        else:
-            chosen = advice[names.index(name)]
-            if not chosen.applies:
-                rec["status"] = "failed"
-                rec["note"] = f"{name} does not apply: {chosen.reason}"
-                res.check("thickness method", "fail", rec["note"])
-                run.blocked = rec["note"]
-                return
         opts = dict(d.method.options)
         fixed = ("pattern", "method", "thickness", "target_fold", "path", "tol")
         _check_options(make, opts, "[method] options", fixed=fixed)
-        impl, _ = _api(f"thickness.{name.replace('-', '_')}", "build")  # the method's own signature
-        if impl is not None:
-            _check_options(impl, opts, f"[method] options (method {name!r})", fixed=fixed)
-        try:
-            plan = built[name] if not opts and name in built else \
-                make(cp, name, thickness=thickness, target_fold=target, path=res.path, **opts)
-        except TypeError as exc:
-            raise DesignFileError(f"[method] options for {name!r}: {exc}") from exc
-        except ThickpanelError as exc:
-            rec["status"] = "failed"
-            rec["note"] = str(exc)
-            res.check("thickness method", "fail", f"{name}: {exc}")
-            run.blocked = f"{name} failed"
-            return
+        plan: Any = None
+        while plan is None:
+            chosen = _chosen(advice, name)
+            if chosen is None or not chosen.applies:
+                _advice_checks(res, advice)
+                rec["status"] = "failed"
+                if chosen is None:
+                    rec["note"] = "no thickness method applies"
+                    res.check("thickness method", "fail", "no method applies: " +
+                              "; ".join(f"{a.method}: {a.reason}" for a in advice))
+                    run.blocked = "no thickness method applies"
+                else:
+                    rec["note"] = f"{name} does not apply: {chosen.reason}"
+                    res.check("thickness method", "fail", rec["note"])
+                    run.blocked = rec["note"]
+                return
+            fn = method_function(chosen.method)  # the method's own signature
+            if fn is not None:
+                _check_options(fn, opts, f"[method] options (method {chosen.method!r})", fixed=fixed)
+            try:
+                plan = built[chosen.method] if not opts and chosen.method in built else \
+                    make(cp, chosen.method, thickness=thickness, target_fold=target, path=res.path, **opts)
+            except TypeError as exc:
+                raise DesignFileError(f"[method] options for {chosen.method!r}: {exc}") from exc
+            except ThickpanelError as exc:
+                if not opts and not chosen.built and isinstance(exc, ThicknessError):
+                    # assessed, not built, for advice: building is the test; rank again without it
+                    advice = refuted(advice, chosen.method, str(exc), target)
+                    continue
+                _advice_checks(res, advice)
+                rec["status"] = "failed"
+                rec["note"] = str(exc)
+                res.check("thickness method", "fail", f"{chosen.method}: {exc}")
+                run.blocked = f"{chosen.method} failed"
+                return
+        _advice_checks(res, advice)
+        name = chosen.method
         if any(o.material for o in d.panels.overrides):  # per-region materials go on the slabs
             import dataclasses
 
@@ -349,6 +356,20 @@ def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
         res.metrics["method"] = name
         rec["note"] = name + (f" ({'; '.join(plan.notes)})" if plan.notes else "")
         res.check("thickness method", "pass", rec["note"])
+
+
+def _chosen(advice: list[Any], name: str) -> Any:
+    """The advice entry of method ``name`` (``auto``: the first that applies, None when none does)."""
+    if name == "auto":
+        return next((a for a in advice if a.applies), None)
+    return next(a for a in advice if a.method == name)
+
+
+def _advice_checks(res: BuildResult, advice: list[Any]) -> None:
+    res.advice = advice
+    for a in advice:
+        res.check(f"method {a.method}", "info" if a.applies else "does not apply",
+                  ("applies" if a.applies else "does not apply") + (f": {a.reason}" if a.reason else ""))
 
 
 def _check_options(fn: Callable[..., Any], opts: dict[str, Any], where: str, fixed: tuple[str, ...]) -> None:
@@ -370,39 +391,41 @@ def _clearance(run: _Run) -> None:
     if run.blocked or res.plan is None or res.path is None:
         why = run.blocked or ("no fold path" if res.path is None else "no thickness plan")
         run.skip("clearance", "blocked", why)
-        res.check("clearance over the fold", "warn", f"not proven: {why}")
+        res.check("clearance over the fold", "not proven", f"the sweep did not run: {why}")
         return
     fn, why = _api("clearance", "clearance")
     if fn is None:
         run.skip("clearance", "not available", why)
-        res.check("clearance", "n/a", why)
+        res.check("clearance over the fold", "could not run", why)
         return
     with run.stage("clearance") as rec:
         # measure pairs out to a few slab thicknesses so the report quotes real distances, not only
         # the bound "at least the margin" (the sweep's own default margin is one thickness)
         margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
+        extra = hardware_for(res)
         if is_wrap_sheet(res.pattern):  # exact end states only (deployed, stowed); see build_wrap
-            rep = fn(res.plan, clearance_path(res.path), margin=margin, refine=False)
+            rep = fn(res.plan, clearance_path(res.path), margin=margin, extra_pieces=extra or None, refine=False)
         else:
-            rep = fn(res.plan, res.path, margin=margin)
+            rep = fn(res.plan, res.path, margin=margin, extra_pieces=extra or None)
         first = getattr(rep, "first_contact", None)
         if d.fold.stop_at_contact and first:
             rep = _stop_at_contact(res, fn, rep, float(first[0]))
         res.clearance = rep
-        mc = float(rep.min_clearance)
-        res.metrics["min_clearance_mm"] = mc
-        where = getattr(rep, "where", None)
-        if getattr(rep, "lower_bound", False):
-            res.metrics["min_clearance_lower_bound"] = True
-            rec["note"] = f"minimum at least {mc:.3f} mm (no two slabs came within the search margin)"
-        else:
-            rec["note"] = f"minimum {mc:.3f} mm" + (f" {_where_text(where)}" if where else "")
+        fig = clearance_figures(rep)
+        res.metrics.update(fig)
+        rec["note"] = "minimum " + fig["min_clearance_text"]
         first = getattr(rep, "first_contact", None)
         if first:
             res.metrics["first_contact"] = {"t": float(first[0]), "pair": list(first[1])}
-        ok = mc >= d.checks.min_clearance
-        res.check("clearance over the fold", "pass" if ok else "fail",
-                  rec["note"] + f" (required >= {d.checks.min_clearance:g} mm)")
+        mc, need = float(rep.min_clearance), d.checks.min_clearance
+        what = "slabs and hinge hardware" if extra else "slabs"
+        detail = rec["note"] + f" ({what}; required >= {need:g} mm)"
+        if mc >= need:
+            res.check("clearance over the fold", "pass", detail)
+        elif fig["min_clearance_lower_bound"]:  # a bound below the requirement proves nothing
+            res.check("clearance over the fold", "not proven", detail)
+        else:
+            res.check("clearance over the fold", "fail", detail)
 
 
 def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
@@ -417,32 +440,22 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
               f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
-    return sweep(res.plan, res.path, margin=rep.margin)
-
-
-def _where_text(where: Any) -> str:
-    try:
-        (a, b), t = where
-        return f"between {a} and {b} at t = {float(t):.3f}"
-    except (TypeError, ValueError):
-        return f"at {where}"
+    return sweep(res.plan, res.path, margin=rep.margin, extra_pieces=hardware_for(res) or None)
 
 
 def _envelope(res: BuildResult) -> None:
-    """Deployed and stowed boxes (mm, principal axes) of the slabs, or of the bare panels."""
-    for label, t in (("deployed", 0.0), ("stowed", 1.0)):
-        got = res.poses_at(t)
-        if got is None:
-            return
-        pts = principal_frame(res.corner_points(got[0]))
-        lo, hi = pts.min(axis=0), pts.max(axis=0)
-        res.metrics[f"{label}_envelope_mm"] = [round(float(x), 3) for x in hi - lo]
-        res.metrics["envelope_from"] = got[1]
-    res.metrics["packing_ratio"] = packing_ratio(res.metrics["deployed_area_mm2"], res.metrics["stowed_envelope_mm"])
-    if is_wrap_sheet(res.pattern):  # diameters about the hub axis and the stowed-annulus figures
+    """Deployed (t = 0) and stowed (last state of the fold) figures, once, for every output."""
+    if res.plan is not None:
+        res.hardware = hardware_for(res)
+    res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
+    ts = res.stowed_t()
+    if ts is None:
+        return
+    got = res.poses_at(ts)
+    res.metrics.update(array_figures(res.state_figures(0.0), res.state_figures(ts), res.metrics["deployed_area_mm2"]))
+    res.metrics["envelope_from"] = got[1] if got else None
+    if is_wrap_sheet(res.pattern):  # deployed diameter about the hub axis, ratio, packaging, volume bound
         wrap_metrics_into(res)
-    else:
-        res.metrics["deployed_diameter_mm"] = diameter(res.pattern.vertices)
 
 
 def _solids(run: _Run) -> None:
@@ -490,7 +503,7 @@ def _solids(run: _Run) -> None:
         res.metrics["total_volume_mm3"] = float(sum(vols))
         masses: list[Any] = [_mass(p) for p in plist]
         if masses and all(m is not None for m in masses):
-            res.metrics["total_mass_g"] = float(np.sum(np.asarray(masses, dtype=float)))
+            res.metrics["total_mass_g"] = round(float(np.sum(np.asarray(masses, dtype=float))), 4)
         res.check("solids valid", "pass", rec["note"])
 
 
@@ -544,10 +557,11 @@ def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> 
         for i, t in enumerate(states):
             if run.progress:
                 run.progress("exports", i, len(states))
-            state = res.path.at(float(t)) if res.path is not None else None
+            last = res.stowed_t()
+            state = res.path.at(min(float(t), last if last is not None else 1.0)) if res.path is not None else None
             sub = res.out_dir if len(states) == 1 else res.out_dir / f"t{t:.2f}"  # type: ignore[operator]
             paths = fn(res.parts, sub, list(formats), state=state, clearance=res.clearance,
-                       path=res.path, scope="state", **shop)
+                       path=res.path, scope="state", figures=export_figures(res, float(t)), **shop)
             res.outputs += [Path(p) for p in paths]
             n += len(paths)
         rec["note"] = f"{n} files in {res.out_dir}{note}"

@@ -22,7 +22,7 @@ import numpy as np
 from .design import Design
 from .errors import DesignFileError, ExportError, PatternError, ThickpanelError
 
-__all__ = ["BuildResult", "Progress", "default_out_dir", "ORDER"]
+__all__ = ["BuildResult", "Progress", "default_out_dir", "ORDER", "VERDICTS", "overall_verdict", "api"]
 
 log = logging.getLogger("thickpanel")
 
@@ -31,6 +31,24 @@ Progress = Callable[[str, int, int], None]
 
 SLACK_MAX_DEG = 179.0  # joint_slack needs a target below 180 deg
 SLACK_STATES = 6  # few fractions: the slack figure is a sizing hint, not a path
+
+VERDICTS = ("pass", "fail", "not proven", "could not run", "does not apply", "warn", "info")
+"""Check verdicts. ``not proven``: the check ran but cannot show the requirement holds (a stage
+it needs was blocked, or a bound does not reach the requirement); ``could not run``: the module it
+needs is not installed; ``does not apply``: the check has no meaning for this design (a thickness
+method that does not fit the pattern); ``warn``: holds with a caution; ``info``: a fact, no test."""
+
+
+def overall_verdict(checks: list[dict[str, Any]]) -> str:
+    """``FAIL`` when a check fails; else ``NOT PROVEN`` when a check is not proven or could not
+    run; else ``PASS``. A summary is never PASS beside a failing or unproven row."""
+    vs = {c["verdict"] for c in checks}
+    if "fail" in vs:
+        return "FAIL"
+    if vs & {"not proven", "could not run"}:
+        return "NOT PROVEN"
+    return "PASS"
+
 
 ORDER = ("pattern", "foldability", "rigidity", "fold path", "method", "clearance", "solids",
          "exports", "drawings", "report")
@@ -57,6 +75,9 @@ class BuildResult:
     outputs: list[Path] = field(default_factory=list)
     report: Path | None = None
     out_dir: Path | None = None
+    hardware: list[Any] = field(default_factory=list)
+    hinge_rows: list[dict[str, Any]] = field(default_factory=list)
+    _figures: dict[float, dict[str, Any]] = field(default_factory=dict, repr=False)
 
     def poses_at(self, t: float) -> tuple[np.ndarray, str] | None:
         """``((P, 4, 4) slab poses, source)`` at fold fraction ``t``, or None without any fold.
@@ -73,29 +94,59 @@ class BuildResult:
             return np.asarray(self.slack.poses[k]), "least-squares fold"
         return None
 
-    def corner_points(self, poses: np.ndarray) -> np.ndarray:
-        """(k, 3) corners of every slab (or bare panel) placed by ``poses``, mm."""
-        out = []
-        if self.plan is None:
-            for p in self.pattern.panels:
-                poly = self.pattern.panel_polygon(p.index)
-                h = np.column_stack([poly, np.zeros(len(poly)), np.ones(len(poly))])
-                out.append((h @ poses[p.index].T)[:, :3])
-            return np.vstack(out)
-        for sl in self.plan.slabs:
-            poly = sl.polygon_array()
-            for z in (sl.z0, sl.z1):
-                h = np.column_stack([poly, np.full(len(poly), z), np.ones(len(poly))])
-                out.append((h @ poses[sl.panel].T)[:, :3])
-        return np.vstack(out)
+    def stowed_t(self) -> float | None:
+        """Fold fraction of the stowed state: the last state of the fold path (or of a locked
+        pattern's least-squares fold); None without either."""
+        if self.path is not None and self.path.states:
+            last = float(self.path.states[-1].t)
+            return last if math.isfinite(last) else 1.0
+        if self.slack is not None and len(self.slack.fractions):
+            return float(np.asarray(self.slack.fractions)[-1])
+        return None
+
+    def state_figures(self, t: float) -> dict[str, Any] | None:
+        """Figures of the fold state at ``t`` (:func:`thickpanel.figures.state_figures`), computed
+        once per fraction and read by the summary, ``metrics.json`` and the report."""
+        key = round(float(t), 9)
+        if key in self._figures:
+            return self._figures[key]
+        got = self.poses_at(t)
+        if got is None:
+            return None
+        from .figures import array_points, hub_axis, state_figures
+
+        poses = got[0]
+        pts = array_points(self.pattern, poses, plan=self.plan, hardware=self.hardware)
+        out = state_figures(pts, t=min(float(t), self.stowed_t() or 1.0), fold_deg=self._fold_deg(t),
+                            poses=poses, hub=hub_axis(self.pattern))
+        self._figures[key] = out
+        return out
+
+    def _fold_deg(self, t: float) -> float:
+        if self.path is not None and self.path.states:
+            last = self.stowed_t() or 1.0
+            st = self.path.at(min(float(t), last))
+            return float(np.degrees(np.abs(np.asarray(st.angles)).max())) if len(st.angles) else 0.0
+        if self.slack is not None and len(self.slack.fractions):
+            k = int(np.argmin(np.abs(np.asarray(self.slack.fractions) - t)))
+            row = np.abs(np.asarray(self.slack.fold_deg)[k])
+            return float(row.max()) if row.size else 0.0
+        return math.nan
 
     @property
     def ok(self) -> bool:
         """True when no check failed."""
         return not any(c["verdict"] == "fail" for c in self.checks)
 
+    @property
+    def verdict(self) -> str:
+        """Overall verdict (:func:`overall_verdict` of the checks)."""
+        return overall_verdict(self.checks)
+
     def check(self, name: str, verdict: str, detail: str) -> None:
-        """Record a check; verdict is ``pass``, ``fail``, ``warn``, ``info`` or ``n/a``."""
+        """Record a check; ``verdict`` is one of :data:`VERDICTS`."""
+        if verdict not in VERDICTS:
+            raise ValueError(f"check {name!r}: verdict {verdict!r} is not one of {', '.join(VERDICTS)}")
         self.checks.append({"check": name, "verdict": verdict, "detail": detail})
 
     def summary(self) -> dict[str, Any]:
@@ -105,6 +156,7 @@ class BuildResult:
             "source": str(self.design.source) if self.design.source else None,
             "command": self.command,
             "ok": self.ok,
+            "verdict": self.verdict,
             "stages": self.stages,
             "checks": self.checks,
             "metrics": _jsonable(self.metrics),
@@ -130,8 +182,9 @@ def _jsonable(x: Any) -> Any:
     return x
 
 
-def _api(module: str, name: str) -> tuple[Any, str]:
-    """``(callable, "")`` or ``(None, reason)`` when ``thickpanel.<module>.<name>`` is missing."""
+def api(module: str, name: str) -> tuple[Any, str]:
+    """``(callable, "")`` or ``(None, reason)`` when ``thickpanel.<module>.<name>`` is missing
+    (``hinges...`` modules are looked up as they are named)."""
     full = module if module.startswith("hinges") else f"thickpanel.{module}"
     try:
         mod = importlib.import_module(full)
@@ -145,6 +198,9 @@ def _api(module: str, name: str) -> tuple[Any, str]:
     if fn is None:
         return None, f"{full}.{name} is not available in this installation"
     return fn, ""
+
+
+_api = api  # the name build.py has always used
 
 
 def default_out_dir(design: Design) -> Path:

@@ -98,7 +98,14 @@ def wrap_metrics_into(res: BuildResult) -> None:
     if res.plan is None:
         th = res.design.panels.thickness
         t = float(th)
-    res.metrics.update(wrap_metrics(res.pattern, res.plan, thickness=t))
+    m = res.metrics
+    cyl = (m["stowed_diameter_mm"], m["stowed_height_mm"]) if "stowed_diameter_mm" in m and \
+        "stowed_height_mm" in m and m.get("stowed_state_t") == 1.0 else None
+    # the stowed cylinder is the build's own figure (thickpanel.figures); derived ones computed from it
+    figs = wrap_metrics(res.pattern, res.plan, thickness=t, cylinder=cyl)
+    if cyl is not None:
+        figs = {k: v for k, v in figs.items() if k not in ("stowed_diameter_mm", "stowed_height_mm")}
+    res.metrics.update(figs)
     res.metrics["safety_caution"] = WRAP_CAUTION
     comp = (getattr(res.path, "meta", None) or {}).get("compliance") if res.path is not None else None
     if comp is not None:

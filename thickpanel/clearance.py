@@ -6,10 +6,15 @@ by a sort-and-sweep broad phase and measured by an exact convex narrow phase.
 
 Touching policy
 ---------------
-* Pieces of the same panel (its convex parts and standoffs) are never compared.
-* *Neighbour* panels (sharing a crease or a vertex of the pattern) meet along their hinge line or
-  at their vertex by construction. For them only penetration counts: a pair enters the report
-  when its penetration depth exceeds ``tol.contact``; touching or any positive gap is allowed.
+* Pieces of the same panel (its convex parts and standoffs) are never compared; hinge hardware
+  (``extra_pieces`` with ``joins``, see :mod:`thickpanel.hardware`) is never compared with the two
+  panels its hinge line joins.
+* *Neighbour* panels meet along their hinge line or at their vertex by construction: panels joined
+  by a hinge line (a mountain, valley or flat crease, or a seam), and panels that share a vertex of
+  the pattern and touch in the flat sheet. For them only penetration counts: a pair enters the
+  report when its penetration depth exceeds ``tol.contact``; touching or any positive gap is
+  allowed. Panels that share only a vertex but stand apart in the flat sheet (corner reliefs,
+  vertex clearances) are not neighbours: their distance counts like any other pair's.
 * Every other pair counts with its signed distance: positive gap, 0 touching, negative
   penetration depth. ``first_contact`` is the first state where some pair reaches ``<= tol.contact``
   (a non-neighbour touching or any penetration).
@@ -51,6 +56,8 @@ __all__ = [
     "plan_pieces",
     "clearance",
     "neighbour_keys",
+    "hinged_keys",
+    "counted_neighbours",
     "contact_stop",
 ]
 
@@ -151,9 +158,14 @@ class ClearanceReport:
         ax = fig.add_subplot(1, 1, 1)
         ts = np.array([r.t for r in self.table])
         vs = np.array([r.min_clearance for r in self.table])
-        vs = np.minimum(vs, self.margin)
-        ax.plot(ts, vs, "-", color="black", marker=".", markersize=3,
-                label=f"minimum clearance (capped at the {self.margin:g} mm search margin)")
+        meas = vs < self.margin  # measured distances; the rest only prove "at least the margin"
+        if meas.any():
+            ax.plot(ts[meas], vs[meas], "-", color="black", marker=".", markersize=4,
+                    label="measured minimum clearance")
+        if (~meas).any():
+            ax.plot(ts[~meas], np.full(int((~meas).sum()), self.margin), linestyle="none", marker="^",
+                    markerfacecolor="none", markeredgecolor="black", markersize=5,
+                    label=f"bound: at least {self.margin:g} mm (nothing within the search margin)")
         ax.axhline(0.0, color="black", linewidth=0.8, linestyle="--")
         if self.first_contact is not None:
             ax.axvline(self.first_contact[0], color="black", linestyle=":", label="first contact")
@@ -248,6 +260,31 @@ def neighbour_keys(plan: ThickPlan) -> IntArray:
     return arr
 
 
+def hinged_keys(plan: ThickPlan) -> IntArray:
+    """Sorted keys ``a * P + b`` (a < b) of panel pairs joined by a hinge line (mountain, valley or
+    flat crease, or a seam): the edges of the pattern's panel graph."""
+    n = plan.pattern.n_panels
+    keys = {min(a, b) * n + max(a, b) for a, b in plan.pattern.panel_graph.edges()}
+    return np.array(sorted(keys), dtype=np.int64)
+
+
+def counted_neighbours(plan: ThickPlan, arrays: Any, tol: Tolerances = DEFAULT_TOL) -> IntArray:
+    """Keys of the neighbour pairs for which only penetration counts (see the touching policy).
+
+    Pairs sharing a vertex (:func:`neighbour_keys`) that are joined by a hinge line
+    (:func:`hinged_keys`) or whose pieces (``arrays``, from :func:`pack_pieces`) come within
+    ``tol.contact`` of each other in the flat sheet.
+    """
+    nkeys = neighbour_keys(plan)
+    n = plan.pattern.n_panels
+    flat = np.broadcast_to(np.eye(4), (n, 4, 4))
+    r = _measure(arrays, list(arrays.pieces), flat, np.zeros(0, np.int64), n, 4.0 * max(tol.contact, tol.length),
+                 tol)
+    touching = r.keys[r.values <= tol.contact]
+    close = np.union1d(hinged_keys(plan), touching)
+    return np.asarray(nkeys[np.isin(nkeys, close)], dtype=np.int64)
+
+
 # ---------------------------------------------------------------------------- one state
 def _plan_poses(plan: ThickPlan, state: FoldState, on_reference: bool) -> FloatArray:
     if on_reference and not plan.explicit_poses and not plan.follow_state:
@@ -292,7 +329,7 @@ def _measure(
     hi = w.max(axis=1)
     pairs = sweep_pairs(lo, hi, pad=margin / 2.0)
     oi, oj = owner[pairs[:, 0]], owner[pairs[:, 1]]
-    keep = oi != oj
+    keep = ~arrays.skipped(pairs[:, 0], pairs[:, 1])
     pairs, oi, oj = pairs[keep], oi[keep], oj[keep]
     gaps = sat_gaps(pairs, w, fn, ed)
     a, b = np.minimum(oi, oj), np.maximum(oi, oj)
@@ -377,7 +414,7 @@ def clearance(
         if not (0 <= p.owner < n_panels):
             raise ThicknessError(f"extra piece {p.label!r} names owner {p.owner}; panels are P000..{pid(n_panels - 1)}")
     arrays = pack_pieces(pieces)
-    nkeys = neighbour_keys(plan)
+    nkeys = counted_neighbours(plan, arrays, tol)
     on_ref = _hinges_on_reference(plan, tol)
 
     results: dict[float, tuple[_StateResult, bool]] = {}
@@ -470,14 +507,16 @@ def clearance(
 
 
 def contact_stop(
-    plan: ThickPlan, *, margin: float | None = None, tol: Tolerances = DEFAULT_TOL
+    plan: ThickPlan, *, margin: float | None = None, extra_pieces: list[Piece] | None = None,
+    tol: Tolerances = DEFAULT_TOL,
 ) -> Callable[[FoldState], bool]:
     """A ``stop_when`` callable for :func:`thickpanel.kinematics.fold_path`: True at the first
-    state where two slabs of ``plan`` touch or penetrate (same touching policy as :func:`clearance`).
+    state where two slabs of ``plan`` (or ``extra_pieces``) touch or penetrate (same touching policy
+    as :func:`clearance`).
     """
-    pieces = plan_pieces(plan, tol=tol)
+    pieces = plan_pieces(plan, tol=tol) + list(extra_pieces or [])
     arrays = pack_pieces(pieces)
-    nkeys = neighbour_keys(plan)
+    nkeys = counted_neighbours(plan, arrays, tol)
     on_ref = _hinges_on_reference(plan, tol)
     m = float(max(s.thickness for s in plan.slabs)) if margin is None else float(margin)
     n_panels = plan.pattern.n_panels

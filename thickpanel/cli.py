@@ -137,8 +137,9 @@ def _print_summary(s: dict[str, Any]) -> None:
     out = sys.stdout
     out.write(f"{s['design']}: {s['command']}\n")
     w = max([len(c["check"]) for c in s["checks"]] + [5])
+    vw = max([len(c["verdict"]) for c in s["checks"]] + [5])
     for c in s["checks"]:
-        out.write(f"  {c['verdict'].upper():<5} {c['check']:<{w}}  {c['detail']}\n")
+        out.write(f"  {c['verdict'].upper():<{vw}} {c['check']:<{w}}  {c['detail']}\n")
     details = " ".join(c["detail"] for c in s["checks"])
     for st in s["stages"]:  # stages not run, unless a check above already says why
         if st["status"] in ("not available", "blocked") and st["note"] not in details:
@@ -147,10 +148,32 @@ def _print_summary(s: dict[str, Any]) -> None:
         out.write(f"  wrote {len(s['outputs'])} files to {s['out_dir']}\n")
     if s.get("report"):
         out.write(f"  report: {s['report']}\n")
-    warns = sum(c["verdict"] == "warn" for c in s["checks"])
-    fails = sum(c["verdict"] == "fail" for c in s["checks"])
-    tail = ", ".join(x for x in (f"{fails} failed" if fails else "", f"{warns} warnings" if warns else "") if x)
-    out.write(f"verdict: {'PASS' if s['ok'] else 'FAIL'}" + (f" ({tail})" if tail else "") + "\n")
+    for line in _figure_lines(s.get("metrics", {})):
+        out.write(f"  {line}\n")
+    counts = [(sum(c["verdict"] == v for c in s["checks"]), label) for v, label in
+              (("fail", "failed"), ("not proven", "not proven"), ("could not run", "could not run"),
+               ("warn", "warnings"))]
+    tail = ", ".join(f"{n} {label}" for n, label in counts if n)
+    verdict = s.get("verdict") or ("PASS" if s["ok"] else "FAIL")
+    out.write(f"verdict: {verdict}" + (f" ({tail})" if tail else "") + "\n")
+
+
+def _figure_lines(m: dict[str, Any]) -> list[str]:
+    """Key figures as the build computed them (the same values as ``--json`` and the report)."""
+    out = []
+    if m.get("min_clearance_text"):
+        out.append(f"minimum clearance: {m['min_clearance_text']}")
+    for key, label in (("deployed_envelope_mm", "deployed envelope (x, y, z box)"),
+                       ("stowed_envelope_mm", f"stowed envelope (x, y, z box) at t = {m.get('stowed_state_t')}"),
+                       ):
+        if m.get(key):
+            out.append(f"{label}: " + " x ".join(f"{x:.4g}" for x in m[key]) + " mm")
+    if m.get("stowed_diameter_mm") is not None:
+        out.append(f"stowed cylinder about the hub axis: diameter {m['stowed_diameter_mm']:.4g} mm, height "
+                   f"{m['stowed_height_mm']:.4g} mm")
+    if m.get("packing_ratio"):
+        out.append(f"packing ratio: {m['packing_ratio']:.3g}")
+    return out
 
 
 def _new(args: argparse.Namespace) -> int:

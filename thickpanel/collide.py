@@ -1,4 +1,5 @@
-"""Convex narrow phase and broad phase for the clearance sweep (pure numpy/scipy + numba).
+"""Convex narrow phase and broad phase for the clearance sweep (pure numpy/scipy; the SAT kernel in
+numba, :mod:`thickpanel.sat_kernel`, loaded on first use).
 
 A slab (panel polygon x z-range, trimmed by cut planes) becomes one or more *convex pieces*: the
 polygon is split into convex parts (ear clipping, then merging triangles across diagonals while the
@@ -21,7 +22,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import numba
 import numpy as np
 from scipy.spatial import ConvexHull, QhullError
 
@@ -38,6 +38,7 @@ __all__ = [
     "PieceArrays",
     "pack_pieces",
     "sweep_pairs",
+    "sweep_candidates",
     "sat_gaps",
     "exact_distance",
 ]
@@ -173,6 +174,9 @@ class Piece:
     edges : (e, 3) float
         Distinct edge directions (up to sign).
     label : str
+    joins : tuple of int
+        Panels (besides ``owner``) this piece is never compared with: hinge hardware sits in the
+        notches of the two panels it joins, so its fit there is the hinge style's own check.
     """
 
     owner: int
@@ -181,6 +185,7 @@ class Piece:
     normals: FloatArray
     edges: FloatArray
     label: str = ""
+    joins: tuple[int, ...] = ()
 
 
 def _unique_dirs(d: FloatArray, eps: float) -> FloatArray:
@@ -197,7 +202,8 @@ def _unique_dirs(d: FloatArray, eps: float) -> FloatArray:
 
 
 def make_piece(
-    owner: int, normals: FloatArray, offsets: FloatArray, *, label: str = "", tol: Tolerances = DEFAULT_TOL
+    owner: int, normals: FloatArray, offsets: FloatArray, *, label: str = "", joins: tuple[int, ...] = (),
+    tol: Tolerances = DEFAULT_TOL,
 ) -> Piece:
     """Convex piece from half-spaces ``normals @ x <= offsets`` (mm); raises when it is empty."""
     verts = halfspace_vertices(np.asarray(normals, float), np.asarray(offsets, float), eps=tol.merge)
@@ -224,18 +230,20 @@ def make_piece(
     e_dirs = np.cross(fn[f_idx[sharp]], fn[g_idx[sharp]])
     edges_u = _unique_dirs(np.array(e_dirs).reshape(-1, 3), tol.angle * 1e3)
     # orient triangles consistently is not needed for distances
-    return Piece(owner, verts, tris.astype(np.int64), normals_u, edges_u, label)
+    return Piece(owner, verts, tris.astype(np.int64), normals_u, edges_u, label, tuple(int(j) for j in joins))
 
 
-def piece_from_points(owner: int, points: FloatArray, *, label: str = "", tol: Tolerances = DEFAULT_TOL) -> Piece:
-    """Convex piece as the hull of ``points`` ((n, 3) float, mm, owner's flat frame)."""
+def piece_from_points(owner: int, points: FloatArray, *, label: str = "", joins: tuple[int, ...] = (),
+                      tol: Tolerances = DEFAULT_TOL) -> Piece:
+    """Convex piece as the hull of ``points`` ((n, 3) float, mm, owner's flat frame); ``joins`` as
+    in :class:`Piece`."""
     pts = np.asarray(points, dtype=float)
     try:
         hull = ConvexHull(pts)
     except (QhullError, ValueError):
         raise ThicknessError(f"{label or 'extra piece'} of owner {owner} has no volume") from None
     eq = hull.equations
-    return make_piece(owner, eq[:, :3], -eq[:, 3], label=label, tol=tol)
+    return make_piece(owner, eq[:, :3], -eq[:, 3], label=label, joins=joins, tol=tol)
 
 
 @dataclass(frozen=True)
@@ -249,6 +257,8 @@ class PieceArrays:
     normals : (N, F, 3) float
     edges : (N, E, 3) float
     pieces : tuple of Piece
+    joins : (N, J) int
+        Each piece's ``joins`` padded with -1 (J >= 1).
     """
 
     owner: IntArray
@@ -256,6 +266,13 @@ class PieceArrays:
     normals: FloatArray
     edges: FloatArray
     pieces: tuple[Piece, ...]
+    joins: IntArray
+
+    def skipped(self, i: IntArray, j: IntArray) -> IntArray:
+        """(k,) bool: piece pairs ``(i, j)`` never compared (same owner, or one joins the other's owner)."""
+        oi, oj = self.owner[i], self.owner[j]
+        return np.asarray((oi == oj) | (self.joins[i] == oj[:, None]).any(axis=1)
+                          | (self.joins[j] == oi[:, None]).any(axis=1))
 
 
 def _pad(rows: list[FloatArray], width: int) -> FloatArray:
@@ -272,16 +289,45 @@ def pack_pieces(pieces: list[Piece]) -> PieceArrays:
     f = max(len(p.normals) for p in pieces)
     e = max(max(len(p.edges) for p in pieces), 1)
     edges = [p.edges if len(p.edges) else np.array([[1.0, 0.0, 0.0]]) for p in pieces]
+    nj = max(max(len(p.joins) for p in pieces), 1)
+    joins = np.full((len(pieces), nj), -1, dtype=np.int64)
+    for k, p in enumerate(pieces):
+        joins[k, : len(p.joins)] = p.joins
     return PieceArrays(
         owner=np.array([p.owner for p in pieces], dtype=np.int64),
         verts=_pad([p.vertices for p in pieces], v),
         normals=_pad([p.normals for p in pieces], f),
         edges=_pad(edges, e),
         pieces=tuple(pieces),
+        joins=joins,
     )
 
 
 # ---------------------------------------------------------------------------- broad phase
+def _best_axis(lo: FloatArray, hi: FloatArray) -> tuple[int, IntArray, IntArray]:
+    """(candidate count, sort order, candidates per box) of the sweep axis with the fewest candidates."""
+    n = len(lo)
+    best: tuple[int, IntArray, IntArray] | None = None
+    for axis in range(3):
+        order = np.argsort(lo[:, axis], kind="stable")
+        slo = lo[order, axis]
+        end = np.searchsorted(slo, hi[order, axis], side="right")
+        counts = np.maximum(end - np.arange(n) - 1, 0)
+        total = int(counts.sum())
+        if best is None or total < best[0]:
+            best = (total, order, counts)
+    assert best is not None
+    return best
+
+
+def sweep_candidates(lo: FloatArray, hi: FloatArray, *, pad: float) -> int:
+    """How many candidate pairs :func:`sweep_pairs` would test (an upper bound of the pairs it returns),
+    counted in O(N log N) without listing them."""
+    if len(lo) < 2:
+        return 0
+    return _best_axis(lo - pad, hi + pad)[0]
+
+
 def sweep_pairs(lo: FloatArray, hi: FloatArray, *, pad: float) -> IntArray:
     """Index pairs (i < j) of boxes overlapping after growing each by ``pad`` (mm).
 
@@ -296,17 +342,7 @@ def sweep_pairs(lo: FloatArray, hi: FloatArray, *, pad: float) -> IntArray:
         return np.zeros((0, 2), dtype=np.int64)
     lo = lo - pad
     hi = hi + pad
-    best: tuple[int, IntArray, IntArray] | None = None
-    for axis in range(3):
-        order = np.argsort(lo[:, axis], kind="stable")
-        slo = lo[order, axis]
-        end = np.searchsorted(slo, hi[order, axis], side="right")
-        counts = np.maximum(end - np.arange(n) - 1, 0)
-        total = int(counts.sum())
-        if best is None or total < best[0]:
-            best = (total, order, counts)
-    assert best is not None
-    total, order, counts = best
+    total, order, counts = _best_axis(lo, hi)
     first = np.repeat(np.arange(n), counts)
     offs = np.arange(total) - np.repeat(np.cumsum(counts) - counts, counts)
     i = order[first]
@@ -317,56 +353,6 @@ def sweep_pairs(lo: FloatArray, hi: FloatArray, *, pad: float) -> IntArray:
 
 
 # ---------------------------------------------------------------------------- SAT kernel
-@numba.njit(cache=True, fastmath=False)
-def _gap(ax: float, ay: float, az: float, va: FloatArray, vb: FloatArray) -> float:
-    amin = 1e300
-    amax = -1e300
-    for k in range(va.shape[0]):
-        d = va[k, 0] * ax + va[k, 1] * ay + va[k, 2] * az
-        amin = min(amin, d)
-        amax = max(amax, d)
-    bmin = 1e300
-    bmax = -1e300
-    for k in range(vb.shape[0]):
-        d = vb[k, 0] * ax + vb[k, 1] * ay + vb[k, 2] * az
-        bmin = min(bmin, d)
-        bmax = max(bmax, d)
-    return max(bmin - amax, amin - bmax)
-
-
-@numba.njit(cache=True)
-def _sat_kernel(
-    pi: IntArray, pj: IntArray, v: FloatArray, fn: FloatArray, ed: FloatArray, out: FloatArray
-) -> None:
-    for k in range(pi.shape[0]):
-        i = pi[k]
-        j = pj[k]
-        va = v[i]
-        vb = v[j]
-        best = -1e300
-        for f in range(fn.shape[1]):
-            g = _gap(fn[i, f, 0], fn[i, f, 1], fn[i, f, 2], va, vb)
-            if g > best:
-                best = g
-            g = _gap(fn[j, f, 0], fn[j, f, 1], fn[j, f, 2], va, vb)
-            if g > best:
-                best = g
-        for a in range(ed.shape[1]):
-            ex, ey, ez = ed[i, a, 0], ed[i, a, 1], ed[i, a, 2]
-            for b in range(ed.shape[1]):
-                fx, fy, fz = ed[j, b, 0], ed[j, b, 1], ed[j, b, 2]
-                cx = ey * fz - ez * fy
-                cy = ez * fx - ex * fz
-                cz = ex * fy - ey * fx
-                nn = math.sqrt(cx * cx + cy * cy + cz * cz)
-                if nn < 1e-9:
-                    continue
-                g = _gap(cx / nn, cy / nn, cz / nn, va, vb)
-                if g > best:
-                    best = g
-        out[k] = best
-
-
 def sat_gaps(pairs: IntArray, verts: FloatArray, normals: FloatArray, edges: FloatArray) -> FloatArray:
     """(p,) float, mm: signed SAT gap of every piece pair in world coordinates.
 
@@ -382,7 +368,9 @@ def sat_gaps(pairs: IntArray, verts: FloatArray, normals: FloatArray, edges: Flo
     """
     out = np.empty(len(pairs))
     if len(pairs):
-        _sat_kernel(
+        from .sat_kernel import sat_kernel  # numba loads with the first sweep, not with the package
+
+        sat_kernel(
             np.ascontiguousarray(pairs[:, 0]),
             np.ascontiguousarray(pairs[:, 1]),
             np.ascontiguousarray(verts),

@@ -127,7 +127,10 @@ SCHEMA: tuple[Key, ...] = (
     Key("exports", "report", "bool", "", True, "Write the HTML report with the exports."),
     Key("exports", "drawings", "bool", "", True, "Write SVG and PNG crease drawings with the exports."),
     Key("checks", "min_clearance", "float", "mm", 0.0, "Least clearance between non-adjacent parts over the "
-        "whole fold for the design to pass.", lo=-1000.0, hi=1000.0),
+        "whole fold for the design to pass (slabs and hinge hardware; panels joined by a hinge line, or touching "
+        "at a shared vertex in the flat sheet, count only when they overlap). The sweep measures out to five "
+        "thicknesses or twice this value, whichever is larger, so a requirement is always checked against a "
+        "measured distance or a bound above it.", lo=-1000.0, hi=1000.0),
     Key("checks", "require_rigid", "bool", "", False, "Fail the design when the pattern is not rigidly foldable "
         "(leave false for membrane or slack-hinge designs)."),
     Key("checks", "require_flat_foldable", "bool", "", False, "Fail the design when a vertex violates Kawasaki, "

@@ -19,6 +19,10 @@ __all__ = [
     "MAX_NESTING",
     "MAX_NAME_LENGTH",
     "MAX_PANELS",
+    "METHOD_TIME_BOUND_S",
+    "STACK_PAIR_SECONDS",
+    "OFFSET_PANEL_PAIR_SECONDS",
+    "OFFSET_PANEL_CREASE_SECONDS",
     "nesting_depth",
     "name_problem",
     "coordinate_problem",
@@ -109,3 +113,28 @@ def coordinate_problem(x: Any) -> str | None:
     if abs(f) > MAX_COORDINATE_MM:
         return f"{f:g} is beyond the coordinate limit of +-{MAX_COORDINATE_MM:g} mm"
     return None
+
+#: Time bound of one thickness method's own work, s, on a 2-core machine. A method whose work
+#: estimate exceeds it refuses before starting, naming the estimate (so ``auto`` moves on to the next
+#: method, and no design inside the panel limit runs for hours). Two methods have work that grows
+#: with the square of a stacked strip (``offset-panel`` and ``membrane-gap``, both bounded), so the
+#: method stage of a check stays within about twice this. A minute is this project's choice for an
+#: interactive check (common practice, no published source).
+METHOD_TIME_BOUND_S = 60.0
+
+#: Cost of one overlapping pair of footprint parts in a stowed stack when its layer order is read,
+#: s (intersection, centroid and vote), measured on the 2-core box with ``bench/bench_method_bound.py``
+#: (accordion strips of 50-300 panels: 0.9-1.4e-4 s on a quiet box, 1.8-2.0e-4 s with the box
+#: shared by other jobs; rounded up).
+STACK_PAIR_SECONDS = 3.0e-4
+
+#: Cost of the offset-panel method per overlapping pair of the stowed stack, s: two layer-order
+#: passes (advice and build), the standoff trims and the clearance sweeps of the plan, all of which
+#: grow with the stack; fitted with :data:`OFFSET_PANEL_CREASE_SECONDS` to the same measurements.
+OFFSET_PANEL_PAIR_SECONDS = 8.0e-4
+
+#: Cost of the offset-panel method per folding crease, s (set-backs of both vertex-clearance
+#: variants and the per-crease share of the sweeps), measured as above: with the pair term the model
+#: gives 5.4 / 11.9 / 26.9 s for strips of 50 / 100 / 200 panels measured at 3.9 / 9.2 / 23.7 s on a
+#: quiet box; on a shared box (load 5 on 2 cores) 18.1 / 34.0 / 53.8 s for 100 / 200 / 300 panels.
+OFFSET_PANEL_CREASE_SECONDS = 0.12

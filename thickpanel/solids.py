@@ -27,8 +27,9 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from hinges import get_hinge_style
-from hinges.base import Box, ExtraPart, HingeContext, HingeDesign, HingeFrame, HingeStyle, SideFeatures
+from hinges.base import Box, ExtraPart, HingeDesign, HingeFrame, HingeStyle, SideFeatures
 from hinges.materials import get_material
+from hinges.plan_designs import design_hinges
 
 from . import occ
 from .errors import GeometryError
@@ -219,12 +220,6 @@ def _box_outline(frame: HingeFrame, b: Box) -> FloatArray:
     return poly if polygon_area(poly) > 0 else poly[::-1].copy()
 
 
-def _fold_of(plan: ThickPlan, crease: int) -> float:
-    ta = plan.pattern.target_angles
-    v = float(ta[crease]) if crease < len(ta) else float("nan")
-    return abs(v) if math.isfinite(v) else abs(plan.target_fold)
-
-
 def build_parts(
     plan: ThickPlan,
     *,
@@ -279,26 +274,12 @@ def build_parts(
         raise GeometryError(f"share = {share!r}; allowed: 'rigid', 'translation', 'none'")
     style = (get_hinge_style(hinge_style, **dict(hinge_options or {}))
              if isinstance(hinge_style, str) else hinge_style)
-    slabs = {s.panel: s for s in plan.slabs}
-    mats: dict[int, str] = {}
-    for s in plan.slabs:
-        key = s.material or material or ""
-        get_material(key, who=pid(s.panel))
-        mats[s.panel] = key
-    designs: list[HingeDesign] = []
+    mats = {s.panel: s.material or material or "" for s in plan.slabs}
+    designs = design_hinges(plan, style, material=material, tol=tol)
     frames: dict[int, HingeFrame] = {}
     per_panel: dict[int, list[tuple[HingeFrame, int, SideFeatures, HingeDesign]]] = {}
-    for h in plan.hinges:
+    for des, h in zip(designs, plan.hinges, strict=True):
         a, b = h.panels
-        if a not in slabs or b not in slabs:
-            raise GeometryError(f"hinge line {cid(h.crease)} joins panels {a}, {b} without slabs")
-        ctx = HingeContext(
-            h, (slabs[a], slabs[b]),
-            (get_material(mats[a], who=pid(a)), get_material(mats[b], who=pid(b))),
-            _fold_of(plan, h.crease), tol,
-        )
-        des = style.design(ctx)
-        designs.append(des)
         frames[h.crease] = fr = HingeFrame.of(h)
         per_panel.setdefault(a, []).append((fr, 0, des.sides[0], des))
         per_panel.setdefault(b, []).append((fr, 1, des.sides[1], des))
@@ -313,7 +294,7 @@ def build_parts(
     # sheets the thickness method made (a backing membrane) and those of the hinge style
     for sp in list(plan.meta.get("sheet_parts", ())) + list(sheet_fn(plan) if callable(sheet_fn) else []):
         parts.append(_sheet_part(sp, plan, state, poses))
-    return PartSet(parts, plan, getattr(style, "name", str(hinge_style)), tuple(designs), state,
+    return PartSet(parts, plan, getattr(style, "name", str(hinge_style)), designs, state,
                    tol)
 
 

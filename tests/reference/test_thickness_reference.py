@@ -291,4 +291,8 @@ def test_offset_crease_face_limits_and_bevelled_hybrid_on_miura():
     assert max(thick_closure_error(hybrid, s) for s in pm.states) < 1e-9
     assert clearance(bare, pm).first_contact[0] < 0.1
     rep = clearance(hybrid, pm)
-    assert rep.first_contact is None and rep.min_clearance > 0
+    # no penetration anywhere; panels that share only a vertex and stand 1.31 mm apart in the flat
+    # sheet (offset layers) are measured since issue 11, and they close to touching (0 mm, within
+    # tol.contact) only at the stow angle, the reach the bevels were sized for
+    assert not rep.collides and rep.min_clearance >= -rep.tol.contact
+    assert rep.first_contact is None or rep.first_contact[0] == pytest.approx(1.0)

@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import math
 import os
-from collections.abc import Callable, Iterable
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -68,6 +68,9 @@ class ExportOptions:
         Added to the names of state files when a prefix is given (``t1.00``).
     plate_mm : (float, float)
         Build-plate size of the 3MF plates, mm.
+    figures : mapping or None
+        Figures a build computed once (:mod:`thickpanel.figures`); ``metrics.json`` writes them
+        as given instead of computing its own.
     """
 
     state: Any = None
@@ -81,6 +84,7 @@ class ExportOptions:
     scope: str = "all"
     state_tag: str = ""
     plate_mm: tuple[float, float] = (250.0, 250.0)
+    figures: Any = None
 
     def top(self, base: str, ext: str, *, state: bool = False) -> str:
         """File name of a top-level output: ``<prefix>-<base>[-<tag>].<ext>`` or ``<base>.<ext>``."""
@@ -182,7 +186,7 @@ def _bom(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
 def _metrics(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
     from .metrics import metrics_json_bytes
 
-    return {"metrics.json": metrics_json_bytes(ps, _state(ps, opt), opt.clearance)}
+    return {"metrics.json": metrics_json_bytes(ps, _state(ps, opt), opt.clearance, figures=opt.figures)}
 
 
 def _gltf(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
@@ -270,6 +274,7 @@ def export_parts(
     prefix: str = "",
     scope: str = "all",
     plate_mm: tuple[float, float] = (250.0, 250.0),
+    figures: Mapping[str, Any] | None = None,
 ) -> list[Path]:
     """Write the chosen formats of a part set under ``out_dir``; return the written paths.
 
@@ -300,6 +305,9 @@ def export_parts(
     plate_mm : (float, float)
         Build plate of the 3MF plates, mm; a part whose footprint does not fit raises
         :class:`ExportError` before anything is written.
+    figures : mapping, optional
+        The build's figures for ``metrics.json`` (see :mod:`thickpanel.figures`): written as
+        given, so ``metrics.json`` repeats the summary's numbers.
 
     Returns
     -------
@@ -317,7 +325,8 @@ def export_parts(
     t = getattr(state if state is not None else partset.state, "t", None)
     tag = f"t{float(t):.2f}" if t is not None else "t0.00"
     opt = ExportOptions(state, clearance, stl_linear_mm, stl_angular_deg, step_schema, nm,
-                        path, prefix, scope, tag, (float(plate_mm[0]), float(plate_mm[1])))
+                        path, prefix, scope, tag, (float(plate_mm[0]), float(plate_mm[1])),
+                        None if figures is None else dict(figures))
     files = render(partset, formats, opt)  # before the folder is made: a refusal writes nothing
     try:
         root.mkdir(parents=True, exist_ok=True)

@@ -147,24 +147,21 @@ def fold_strip_png(res: Any, fractions: Sequence[float] = (0.0, 0.25, 0.5, 0.75,
 
 
 def envelope_png(res: Any) -> bytes | None:
-    """Stowed state seen from above and from the side with its bounding-box dimensions in mm."""
-    fr = res.poses_at(1.0) if hasattr(res, "poses_at") else None
-    if fr is None:
+    """Stowed state seen along x, y and z with the stowed box (the build's figure, design frame) and
+    its dimensions in mm."""
+    ts = res.stowed_t() if hasattr(res, "stowed_t") else None
+    fr = res.poses_at(ts) if ts is not None else None
+    fig_s = res.state_figures(ts) if fr is not None else None
+    if fr is None or fig_s is None:
         return None
     from matplotlib.figure import Figure
 
     faces = slab_faces(res, fr[0])
-    pts = np.vstack(faces)
-    # the same principal axes as the envelope figures of the summary (largest spread first)
-    mean = pts.mean(axis=0)
-    _, _, vt = np.linalg.svd(pts - mean, full_matrices=False)
-    faces = [(f - mean) @ vt.T for f in faces]
-    pts = np.vstack(faces)
-    lo, hi = pts.min(axis=0), pts.max(axis=0)
-    size = hi - lo
+    lo, hi = (np.asarray(c, dtype=float) for c in fig_s["box_corners_mm"])
+    size = np.asarray(fig_s["box_mm"], dtype=float)
+    names = "xyz"
     fig = Figure(figsize=(10, 4.2), dpi=90)
-    for k, (i, j, title) in enumerate(((0, 1, "view along axis 3"), (0, 2, "view along axis 2"),
-                                       (1, 2, "view along axis 1"))):
+    for k, (i, j) in enumerate(((0, 1), (0, 2), (1, 2))):
         ax = fig.add_subplot(1, 3, k + 1)
         for f in faces:
             ax.fill(f[:, i], f[:, j], facecolor=(0.85, 0.86, 0.9), edgecolor="black", linewidth=0.3)
@@ -174,11 +171,22 @@ def envelope_png(res: Any) -> bytes | None:
         ax.annotate(f"{size[j]:.1f} mm", (hi[i], (lo[j] + hi[j]) / 2), xytext=(-3, 0),
                     textcoords="offset points", ha="right", va="center", rotation=90, fontsize=9)
         ax.set_aspect("equal", adjustable="datalim")
-        ax.set_title(title, fontsize=10)
-        ax.set_xlabel(f"axis {i + 1} (mm)")
-        ax.set_ylabel(f"axis {j + 1} (mm)")
+        ax.set_title(f"view along {names[3 - i - j]}", fontsize=10)
+        ax.set_xlabel(f"{names[i]} (mm)")
+        ax.set_ylabel(f"{names[j]} (mm)")
     fig.tight_layout()
     return _png(fig)
+
+
+def _bound_table(rep: Any) -> str:
+    """Per-state table when no pair came within the search margin (a plot would be a flat line)."""
+    rows = rep.table
+    step = max(1, len(rows) // 10)
+    shown = [r for r in rows[::step]] + ([rows[-1]] if (len(rows) - 1) % step else [])
+    return (f'<p class="note">No two parts came within the {rep.margin:g} mm search margin in any state, so '
+            "every state's minimum is a bound, not a measured distance.</p>"
+            + _table(["fold fraction t", "minimum clearance", "piece pairs measured"],
+                     [[float(r.t), f"at least {rep.margin:g} mm", r.candidates] for r in shown], num=(0, 2)))
 
 
 def _clearance_png(rep: Any) -> bytes | None:
@@ -190,7 +198,7 @@ def _clearance_png(rep: Any) -> bytes | None:
 
 # --------------------------------------------------------------------------- page
 def _verdict_cell(v: str) -> str:
-    cls = "pass" if v == "pass" else ("fail" if v == "fail" else "")
+    cls = "pass" if v == "pass" else ("fail" if v in ("fail", "not proven") else "")
     return f'<td class="{cls}">{_e(v.upper())}</td>'
 
 
@@ -247,27 +255,21 @@ def _hinge_section(res: Any) -> str:
     d = res.design
     opts = ", ".join(f"{k} = {v}" for k, v in d.hinge.options.items()) or "defaults"
     out = [f"<p>Hinge style <b>{_e(d.hinge.style)}</b> ({_e(opts)}).</p>"]
-    plan = getattr(res, "plan", None)
-    if plan is None or not plan.hinges:
+    rows_in = list(getattr(res, "hinge_rows", []) or [])
+    if not rows_in:
         out.append('<p class="note">Hinge-line checks: not available (no thickness plan).</p>')
         return "\n".join(out)
-    from ..pattern import cid
-
-    target = float(plan.target_fold)
-    rows = []
-    for h in plan.hinges:
-        lo, hi = h.fold_range
-        reach = max(abs(lo), abs(hi))
-        ok = reach >= target - 1e-9 * max(1.0, target)
-        rows.append([cid(h.crease), h.face, float(h.gap), float(h.usable_length), math.degrees(lo), math.degrees(hi),
-                     "pass" if ok else "fail"])
+    # the rows of the build's "hinge lines reach their stowed fold" check: each hinge line's fold
+    # range against its own crease's fold in the stowed state
+    rows = [[r["crease"], r["face"], r["gap_mm"], r["usable_mm"], r["range_deg"][0], r["range_deg"][1],
+             r["stowed_fold_deg"], r["verdict"]] for r in rows_in]
     bad = [r for r in rows if r[-1] == "fail"]
     rows.sort(key=lambda r: (r[-1] != "fail", r[3]))
-    out.append(f"<p>{len(rows)} hinge lines; {len(bad)} cannot reach the target fold of "
-               f"{math.degrees(target):.1f} deg without their slabs meeting.</p>")
+    out.append(f"<p>{len(rows)} hinge lines; {len(bad)} cannot reach their crease's fold in the stowed state "
+               "without their slabs meeting.</p>")
     shown = rows[:40]
     out.append(_table(["crease", "face", "gap (mm)", "usable length (mm)", "fold range from (deg)",
-                       "to (deg)", "reaches target"], shown, num=(2, 3, 4, 5)))
+                       "to (deg)", "stowed fold (deg)", "reaches it"], shown, num=(2, 3, 4, 5, 6)))
     if len(rows) > len(shown):
         out.append(f'<p class="note">{len(rows) - len(shown)} more hinge lines not listed '
                    "(failing and shortest first).</p>")
@@ -304,9 +306,12 @@ def _key_figures(res: Any, m: dict[str, Any]) -> str:
         ["hinge style", d.hinge.style],
         ["rigid folding", fmt("rigid")],
         ["fold reached", fmt("reached_fold_deg", "deg") + f" of {d.fold.target_deg:g} deg"],
-        ["minimum clearance", fmt("min_clearance_mm", "mm")],
-        ["deployed envelope", fmt("deployed_envelope_mm", "mm")],
-        ["stowed envelope", fmt("stowed_envelope_mm", "mm")],
+        ["minimum clearance", m.get("min_clearance_text") or "-"],
+        ["deployed envelope (x, y, z box)", fmt("deployed_envelope_mm", "mm")],
+        [f"stowed envelope (x, y, z box) at t = {fmt('stowed_state_t')}", fmt("stowed_envelope_mm", "mm")],
+        *([["stowed cylinder about the hub axis (diameter, height)",
+            f"{fmt('stowed_diameter_mm')} x {fmt('stowed_height_mm', 'mm')}"]]
+          if m.get("stowed_diameter_mm") is not None else []),
         ["packing ratio", fmt("packing_ratio", "", 3)],
         ["parts", fmt("parts")],
         ["total mass", fmt("total_mass_g", "g")],
@@ -319,7 +324,7 @@ def render_report(res: Any) -> str:
     d = res.design
     s = res.summary() if hasattr(res, "summary") else dict(res)
     m = s["metrics"]
-    verdict = "PASS" if s["ok"] else "FAIL"
+    verdict = s.get("verdict") or ("PASS" if s["ok"] else "FAIL")
     pinned = source_date_epoch() is not None  # reproducible: no run times in the file
     parts = [
         "<!DOCTYPE html>",
@@ -355,20 +360,19 @@ def render_report(res: Any) -> str:
               "<h2>Clearance over the fold</h2>"]
     rep = getattr(res, "clearance", None)
     if rep is not None:
-        where = getattr(rep, "where", None)
-        txt = f"Minimum clearance {float(rep.min_clearance):.3f} mm"
-        if getattr(rep, "lower_bound", False):
-            txt = (f"Minimum clearance at least {float(rep.min_clearance):.3f} mm (no two slabs came within "
-                   "the sweep's search margin in some state)")
-        elif where:
-            (a, b), t = where
-            txt += f" between {a} and {b} at t = {float(t):.3f}"
-        parts.append(f"<p>{_e(txt)}; the design requires at least {d.checks.min_clearance:g} mm.</p>")
+        parts.append(f"<p>Minimum clearance {_e(m.get('min_clearance_text') or '-')}; the design requires at "
+                     f"least {d.checks.min_clearance:g} mm. Parts of panels joined by a hinge line, or touching "
+                     "at a shared vertex in the flat sheet, are not compared (only their penetration counts); "
+                     "knuckle barrels, pins and other hinge hardware are measured against every other panel.</p>")
         if getattr(rep, "worst_pairs", None):
             parts.append(_table(["pair", "clearance (mm)", "at t"],
                                 [[f"{a}-{b}", float(c), float(t)] for (a, b), c, t in rep.worst_pairs],
                                 num=(1, 2)))
-    parts.append(_img(_clearance_png(rep), "clearance against fold fraction"))
+            parts.append(_img(_clearance_png(rep), "clearance against fold fraction"))
+        else:
+            parts.append(_bound_table(rep))
+    else:
+        parts.append('<p class="note">Clearance over the fold: not available (the sweep did not run).</p>')
     slack = getattr(res, "slack", None)
     if slack is not None:
         parts.append("<h2>Joint slack (locked pattern)</h2>")
@@ -381,16 +385,25 @@ def render_report(res: Any) -> str:
                               r["worst_off_axis_deg"]] for r in slack.rows()], num=(0, 1, 2, 3, 4)))
     parts.append("<h2>Stowed envelope</h2>")
     env_rows = []
-    for key, label in (("deployed_envelope_mm", "deployed"), ("stowed_envelope_mm", "stowed")):
+    for key, label in (("deployed_envelope_mm", "deployed (t = 0)"),
+                       ("stowed_envelope_mm", f"stowed (t = {m.get('stowed_state_t', 1.0)})")):
         if m.get(key):
             x, y, z = m[key]
             env_rows.append([label, x, y, z])
     if env_rows:
-        parts.append('<p class="note">Boxes along the principal axes of each state (largest extent '
-                     "first), so they do not depend on which panel stays still.</p>")
-        parts.append(_table(["state", "axis 1 (mm)", "axis 2 (mm)", "axis 3 (mm)"], env_rows, num=(1, 2, 3)))
+        parts.append(f'<p class="note">{_e(m.get("envelope", "box"))}: every slab and piece of hinge hardware, '
+                     "the fold's fixed panel where the design draws it.</p>")
+        parts.append(_table(["state", "x (mm)", "y (mm)", "z (mm)"], env_rows, num=(1, 2, 3)))
+        dep = res.state_figures(0.0) if hasattr(res, "state_figures") else None  # the build's t = 0 figures
+        cyl = ([["deployed (t = 0)", *dep["cylinder_mm"]]] if dep and "cylinder_mm" in dep else []) + \
+            ([[f"stowed (t = {m.get('stowed_state_t')})", m["stowed_diameter_mm"], m["stowed_height_mm"]]]
+             if m.get("stowed_diameter_mm") is not None else [])
+        if cyl:
+            parts.append(f'<p class="note">{_e(m.get("cylinder", ""))}.</p>')
+            parts.append(_table(["state", "diameter (mm)", "height (mm)"], cyl, num=(1, 2)))
         if m.get("packing_ratio"):
-            parts.append(f"<p>Packing ratio (deployed panel area / stowed footprint): {m['packing_ratio']:.2f}.</p>")
+            parts.append(f"<p>Packing ratio (deployed panel area / stowed footprint, the two largest sides of "
+                         f"the stowed box): {m['packing_ratio']:.3g}.</p>")
     parts.append(_img(envelope_png(res), "stowed envelope"))
     parts += ["<h2>Bill of materials</h2>", _bom_section(res),
               "<h2>Thickness method</h2>", _method_section(res),

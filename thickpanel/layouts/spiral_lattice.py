@@ -23,7 +23,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ..errors import PatternError
 from ..typing import FloatArray, IntArray
@@ -194,6 +193,8 @@ def solve_parameter(
     roots: list[float] = []
     exact = np.nonzero((f == 0.0) & valid)[0]
     roots.extend(float(x[i]) for i in exact)
+
+    from scipy.optimize import brentq  # lazy: listing the layouts should not load scipy.optimize
 
     def g(t: float) -> float:
         hh, dd = _h_delta(constraint, n_arms, np.array([t]))

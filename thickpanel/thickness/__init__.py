@@ -28,6 +28,8 @@ __all__ = [
     "available_methods",
     "methods_for",
     "MethodAdvice",
+    "rank_advice",
+    "refuted",
     "register_method",
     "method_function",
     "ThickPlan",
@@ -38,22 +40,32 @@ __all__ = [
 ]
 
 MethodFn = Callable[..., ThickPlan]
+AssessFn = Callable[..., tuple[str, float]]
+"""Applicability without building: ``(pattern, *, thickness, target_fold, path, tol) -> (reason, reachable
+rad)``, raising :class:`~thickpanel.errors.ThicknessError` when the method does not apply."""
 _REGISTRY: dict[str, MethodFn] = {}
+_ASSESS: dict[str, AssessFn] = {}
 # recommendation order: exact full-range methods first, the baseline last
 _ORDER = ("wrap-backing", "offset-panel", "offset-crease", "tapered", "hinge-shift", "membrane-gap", "plain")
 _RIGID = frozenset({"offset-panel", "offset-crease", "tapered", "hinge-shift"})
 
 
-def register_method(name: str, fn: MethodFn) -> MethodFn:
-    """Register a thickness method under ``name``; a duplicate name is refused."""
+def register_method(name: str, fn: MethodFn, *, assess: AssessFn | None = None) -> MethodFn:
+    """Register a thickness method under ``name``; a duplicate name is refused.
+
+    ``assess`` (optional) answers "does it apply, why, how far" without building the plan; give it
+    for methods whose build is expensive, so :func:`methods_for` need not build them for advice.
+    """
     if name in _REGISTRY and _REGISTRY[name] is not fn:
         raise ValueError(f"thickness method {name!r} is already registered")
     _REGISTRY[name] = fn
+    if assess is not None:
+        _ASSESS[name] = assess
     return fn
 
 
 for _mod in (tapered, offset_panel, offset_crease, membrane_gap, hinge_shift, plain, wrap_backing):
-    register_method(_mod.NAME, _mod.build)
+    register_method(_mod.NAME, _mod.build, assess=getattr(_mod, "assess", None))
 
 
 def method_function(name: str) -> MethodFn | None:
@@ -123,6 +135,9 @@ class MethodAdvice:
     min_clearance : float, mm
         Minimum clearance over the path when ``methods_for(..., sweep=True)`` ran the clearance
         sweep (negative = penetration), NaN otherwise.
+    built : bool
+        Whether the verdict comes from building the plan (False: from the method's applicability
+        checks alone; building it may still refuse, see :func:`refuted`).
     """
 
     method: str
@@ -130,9 +145,12 @@ class MethodAdvice:
     reason: str
     reachable: float
     min_clearance: float = float("nan")
+    built: bool = True
 
 
-def _rigid_verdict(pattern: CreasePattern) -> tuple[str, str]:
+def _rigid_verdict(pattern: CreasePattern, verdict: Any) -> tuple[str, str]:
+    if verdict is not None:
+        return str(verdict.kind), str(getattr(verdict, "reason", ""))
     from ..wrap.sheet import wrap_info
 
     if wrap_info(pattern) is not None:  # structural verdict, no solver run on thousands of panels
@@ -151,6 +169,68 @@ def _rigid_verdict(pattern: CreasePattern) -> tuple[str, str]:
     return str(v.kind), str(getattr(v, "reason", ""))
 
 
+def _order() -> list[str]:
+    return [n for n in _ORDER if n in _REGISTRY] + [n for n in available_methods() if n not in _ORDER]
+
+
+def rank_advice(advice: list[MethodAdvice], target_fold: float, *, tol: Tolerances = DEFAULT_TOL) -> list[MethodAdvice]:
+    """``advice`` in recommendation order (see :func:`methods_for`), as a new list."""
+    rank = {n: i for i, n in enumerate(_order())}
+
+    def key(a: MethodAdvice) -> tuple[bool, bool, bool, bool, float, int]:
+        partial = a.reachable < target_fold - tol.angle
+        collides = bool(a.min_clearance < -tol.contact)  # NaN (not swept) compares False
+        return (not a.applies, a.method == "plain", collides, partial, -a.reachable if partial else 0.0,
+                rank.get(a.method, len(rank)))
+
+    return sorted(advice, key=key)
+
+
+def refuted(
+    advice: list[MethodAdvice], method: str, reason: str, target_fold: float, *, tol: Tolerances = DEFAULT_TOL
+) -> list[MethodAdvice]:
+    """``advice`` re-ranked after building ``method`` (assessed, not built) refused with ``reason``."""
+    out = [MethodAdvice(a.method, False, reason, 0.0) if a.method == method else a for a in advice]
+    return rank_advice(out, target_fold, tol=tol)
+
+
+def _advise_one(
+    pattern: CreasePattern, name: str, target_fold: float, thickness: Any, path: FoldPath | None,
+    tol: Tolerances, plans: dict[str, ThickPlan] | None, build: bool,
+) -> tuple[MethodAdvice, ThickPlan | None]:
+    assess = _ASSESS.get(name)
+    if assess is not None and not build:
+        try:
+            reason, reach = assess(pattern, thickness=thickness, target_fold=target_fold, path=path, tol=tol)
+        except ThicknessError as exc:
+            return MethodAdvice(name, False, str(exc), 0.0, built=False), None
+        if reach < target_fold - tol.angle:
+            reason = f"applies up to {math.degrees(reach):.4g} deg of the {math.degrees(target_fold):.4g} deg target"
+        return MethodAdvice(name, True, reason, reach, built=False), None
+    try:
+        plan = make_plan(pattern, name, thickness=thickness, target_fold=target_fold, path=path, tol=tol)
+    except ThicknessError as exc:
+        reach = 0.0
+        if name == "tapered" and target_fold >= math.pi - tol.angle:
+            try:
+                t = tapered.panel_thicknesses(pattern, thickness)
+                reach = tapered.reachable_limit(pattern, t, "mid")[0]
+            except ThicknessError:
+                reach = 0.0
+        return MethodAdvice(name, False, str(exc), reach), None
+    if plans is not None:
+        plans[name] = plan
+    reach = float(plan.meta.get("reachable", plan.target_fold))
+    if name == "plain":
+        reason = "baseline only: slabs meet on the inner side of every fold"
+        reach = 0.0
+    elif reach < plan.target_fold - tol.angle:
+        reason = f"applies up to {math.degrees(reach):.4g} deg of the {math.degrees(target_fold):.4g} deg target"
+    else:
+        reason = plan.notes[0] if plan.notes else "applies"
+    return MethodAdvice(name, True, reason, reach), plan
+
+
 def methods_for(
     pattern: CreasePattern,
     target_fold: float,
@@ -160,6 +240,8 @@ def methods_for(
     sweep: bool = False,
     tol: Tolerances = DEFAULT_TOL,
     plans: dict[str, ThickPlan] | None = None,
+    verdict: Any = None,
+    build_all: bool = False,
 ) -> list[MethodAdvice]:
     """Every registered method with applies / does not apply, the reason and the reachable fold.
 
@@ -169,12 +251,19 @@ def methods_for(
     every applicable plan is also swept (:func:`thickpanel.clearance.clearance`) and methods that
     clear the whole path come before those that collide. A ``plans`` dict given receives every
     plan built here (default options), keyed by method name, so a caller can reuse the chosen one.
+
+    Methods registered with an ``assess`` callable (``offset-panel``, whose set-backs cost about a
+    second per dozen panels) are only assessed, not built, unless ``sweep`` or ``build_all`` is
+    true; their advice has ``built=False`` and no plan in ``plans``. A caller that then builds one
+    and gets a :class:`~thickpanel.errors.ThicknessError` re-ranks with :func:`refuted`.
+    ``verdict`` is the pattern's rigid-foldability verdict when the caller already has it
+    (otherwise it is computed here).
     """
-    kind, why = _rigid_verdict(pattern)
+    kind, why = _rigid_verdict(pattern, verdict)
     out: list[MethodAdvice] = []
-    names = [n for n in _ORDER if n in _REGISTRY] + [n for n in available_methods() if n not in _ORDER]
+    build = build_all or (sweep and path is not None)
     wrap_sheet, wrap_why = wrap_backing.applies(pattern)
-    for name in names:
+    for name in _order():
         if name == wrap_backing.NAME and not wrap_sheet:
             out.append(MethodAdvice(name, False, wrap_why, 0.0))
             continue
@@ -185,44 +274,15 @@ def methods_for(
         if name in _RIGID and kind == "locked":
             out.append(MethodAdvice(name, False, f"the pattern is not rigidly foldable: {why}", 0.0))
             continue
-        try:
-            plan = make_plan(pattern, name, thickness=thickness, target_fold=target_fold, path=path, tol=tol)
-        except ThicknessError as exc:
-            reach = 0.0
-            if name == "tapered" and target_fold >= math.pi - tol.angle:
-                try:
-                    t = tapered.panel_thicknesses(pattern, thickness)
-                    reach = tapered.reachable_limit(pattern, t, "mid")[0]
-                except ThicknessError:
-                    reach = 0.0
-            out.append(MethodAdvice(name, False, str(exc), reach))
-            continue
-        if plans is not None:
-            plans[name] = plan
-        reach = float(plan.meta.get("reachable", plan.target_fold))
-        if name == "plain":
-            reason = "baseline only: slabs meet on the inner side of every fold"
-            reach = 0.0
-        elif reach < plan.target_fold - tol.angle:
-            reason = f"applies up to {math.degrees(reach):.4g} deg of the {math.degrees(target_fold):.4g} deg target"
-        else:
-            reason = plan.notes[0] if plan.notes else "applies"
-        mc = float("nan")
-        if sweep and path is not None:
+        adv, plan = _advise_one(pattern, name, target_fold, thickness, path, tol, plans, build)
+        if plan is not None and sweep and path is not None:
             from ..clearance import clearance
 
             rep = clearance(plan, path, tol=tol)
-            mc = rep.min_clearance
+            reason = adv.reason
             if rep.collides and rep.where is not None:
                 (a, b), tt = rep.where
-                reason += f"; collides: {a}-{b} by {-mc:.3g} mm at t = {tt:.3f}"
-        out.append(MethodAdvice(name, True, reason, reach, mc))
-    rank = {n: i for i, n in enumerate(names)}
-
-    def key(a: MethodAdvice) -> tuple[bool, bool, bool, bool, float, int]:
-        partial = a.reachable < target_fold - tol.angle
-        collides = bool(a.min_clearance < -tol.contact)  # NaN (not swept) compares False
-        return (not a.applies, a.method == "plain", collides, partial, -a.reachable if partial else 0.0, rank[a.method])
-
-    out.sort(key=key)
-    return out
+                reason += f"; collides: {a}-{b} by {-rep.min_clearance:.3g} mm at t = {tt:.3f}"
+            adv = MethodAdvice(name, True, reason, adv.reachable, rep.min_clearance)
+        out.append(adv)
+    return rank_advice(out, target_fold, tol=tol)

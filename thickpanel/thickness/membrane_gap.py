@@ -58,8 +58,11 @@ def tucked_layers(pattern: CreasePattern, path: FoldPath | None, *, tol: Toleran
     """
     if path is None or not len(path.states):
         return {}
-    from .layers import layer_order
+    from ..limits import STACK_PAIR_SECONDS
+    from .layers import check_stack_work, layer_order
 
+    # one layer-order pass: refused before it starts beyond the time bound
+    check_stack_work(pattern, path.states[-1], method=NAME, pair_seconds=STACK_PAIR_SECONDS, tol=tol)
     try:
         order = layer_order(pattern, path.states[-1], tol=tol)
     except ThicknessError:

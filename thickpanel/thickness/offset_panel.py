@@ -36,6 +36,7 @@ import numpy as np
 from ..collide import sweep_pairs
 from ..errors import ThicknessError
 from ..geometry2d import polygon_area
+from ..limits import OFFSET_PANEL_CREASE_SECONDS, OFFSET_PANEL_PAIR_SECONDS
 from ..pattern import cid
 from ..poses import fold_state_from_angles
 from ..tolerances import DEFAULT_TOL, Tolerances
@@ -50,7 +51,7 @@ from .common import (
     vertex_clearance_radius,
     vertex_cuts,
 )
-from .layers import LayerOrder, clip_convex, layer_order
+from .layers import LayerOrder, check_stack_work, clip_convex, layer_order
 from .plan import Slab, Standoff, ThickPlan
 from .setback import SETBACK_SAMPLES, crease_setbacks, trim_standoffs
 
@@ -269,6 +270,7 @@ def build(
     if not auto or not rep.collides:
         return plan
     try:
+        kw["order"] = first.meta["layers"]  # the same stack: read its order once
         cut, rep_cut = _trimmed(_build_plan(pattern, vertex_clearance=True, **kw), path, tol=tol)
     except ThicknessError as err:
         return replace(plan, notes=plan.notes + (f"vertex clearances not applied: {err}",))
@@ -335,6 +337,63 @@ def _trimmed(plan: ThickPlan, path: FoldPath, *, tol: Tolerances) -> tuple[Thick
     return out, clearance(out, path, tol=tol)
 
 
+def _stack_order(
+    pattern: CreasePattern, t: np.ndarray, target: float, path: FoldPath | None, tol: Tolerances
+) -> tuple[LayerOrder, Any]:
+    """Layer order of the stowed stack and the fold state it was read from."""
+    if path is not None and len(path.states):
+        # at an exact flat fold all reference planes coincide and no order can be read:
+        # use the last state that is not yet flat
+        state = path.states[-1]
+        for st in reversed(path.states):
+            state = st
+            if float(np.max(np.abs(st.angles))) < math.pi - 1e-6:
+                break
+    else:
+        state = fold_state_from_angles(pattern, final_angles(pattern, target, None))
+        if state.closure_error > 1e3 * tol.closure:
+            raise ThicknessError(
+                f"method {NAME} needs a fold path to find the layer order: the final fold angles "
+                f"do not close (closure error {state.closure_error:.3g})"
+            )
+    # the whole method's work against the time bound, before any of it
+    work = len(require_folding(pattern, NAME)) * OFFSET_PANEL_CREASE_SECONDS
+    check_stack_work(pattern, state, method=NAME, pair_seconds=OFFSET_PANEL_PAIR_SECONDS, other_s=work, tol=tol)
+    return layer_order(pattern, state, thickness=t, tol=tol), state
+
+
+def _layers_note(order: LayerOrder, longest: float) -> str:
+    return f"{int(order.level.max()) + 1} layers; longest standoff {longest:.4g} mm"
+
+
+def assess(
+    pattern: CreasePattern,
+    *,
+    thickness: Any,
+    target_fold: float,
+    path: FoldPath | None = None,
+    tol: Tolerances = DEFAULT_TOL,
+) -> tuple[str, float]:
+    """Whether the method applies with default options, without building the plan.
+
+    Runs the checks of :func:`build` that come before the set-backs (target, thicknesses, folding
+    creases, the layer order of the stowed stack) and returns the first note :func:`build` would
+    give and the reachable fold (rad; the hinge axes stay on the creases, so the target). The
+    set-back, slot and trim steps are not run: a plan whose set-backs find no clearance (or whose
+    clearances leave no hinge length) still raises in :func:`build`.
+
+    Raises
+    ------
+    ThicknessError
+        As :func:`build` for the checks named above.
+    """
+    target = check_target(target_fold, method=NAME)
+    t = panel_thicknesses(pattern, thickness)
+    require_folding(pattern, NAME)
+    order, _ = _stack_order(pattern, t, target, path, tol)
+    return _layers_note(order, reference_height(order.base, t)[1]), target
+
+
 def _build_plan(
     pattern: CreasePattern,
     *,
@@ -357,23 +416,7 @@ def _build_plan(
     fc = require_folding(pattern, NAME)
     state_for_order = None
     if order is None:
-        if path is not None and len(path.states):
-            # at an exact flat fold all reference planes coincide and no order can be read:
-            # use the last state that is not yet flat
-            state = path.states[-1]
-            for st in reversed(path.states):
-                state = st
-                if float(np.max(np.abs(st.angles))) < math.pi - 1e-6:
-                    break
-        else:
-            state = fold_state_from_angles(pattern, final_angles(pattern, target, None))
-            if state.closure_error > 1e3 * tol.closure:
-                raise ThicknessError(
-                    f"method {NAME} needs a fold path to find the layer order: the final fold angles "
-                    f"do not close (closure error {state.closure_error:.3g})"
-                )
-        order = layer_order(pattern, state, thickness=t, tol=tol)
-        state_for_order = state
+        order, state_for_order = _stack_order(pattern, t, target, path, tol)
     shift, longest = reference_height(order.base, t)
     if hinge_plane is not None:
         top = float(np.max(order.base + t))
@@ -498,7 +541,7 @@ def _build_plan(
     return ThickPlan(
         pattern, NAME, tuple(slabs), tuple(hinges), target,
         notes=(
-            f"{int(order.level.max()) + 1} layers; longest standoff {longest:.4g} mm",
+            _layers_note(order, longest),
             "hinge axes on the zero-thickness creases: fold angles equal the zero-thickness ones",
         ),
         meta={"layers": order, "longest_standoff": longest, "vertex_radii": radii, "setbacks": setback_of},

@@ -387,8 +387,16 @@ def trim_standoffs(
     notes: list[str] = []
     v = pattern.vertices
 
+    pieces: dict[int, tuple[Slab, list[Any]]] = {}  # slab index -> (slab, its pieces), redone when trimmed
+
+    def pieces_of(i: int) -> list[Any]:
+        got = pieces.get(i)
+        if got is None or got[0] is not out[i]:
+            got = pieces[i] = (out[i], slab_pieces(out[i], tol=tol))
+        return got[1]
+
     def others_of(p: int) -> list[Any]:
-        return [pc for s in out if s.panel != p for pc in slab_pieces(s, tol=tol)]
+        return [pc for i, s in enumerate(out) if s.panel != p for pc in pieces_of(i)]
 
     def penetration(p: int, cand: list[Any], others: list[Any]) -> float:
         arr = pack_pieces(cand + others)

@@ -45,7 +45,8 @@ def _corners(poly: FloatArray, z0: float, z1: float, pose: FloatArray) -> FloatA
 
 
 def wrap_metrics(pattern: CreasePattern, plan: ThickPlan | None = None, *,
-                 stowed_poses: FloatArray | None = None, thickness: float | None = None) -> dict[str, float]:
+                 stowed_poses: FloatArray | None = None, thickness: float | None = None,
+                 cylinder: tuple[float, float] | None = None) -> dict[str, float]:
     """The stowed-state figures of a hub-wrap array (keys :data:`WRAP_METRIC_KEYS`, mm).
 
     Parameters
@@ -58,6 +59,10 @@ def wrap_metrics(pattern: CreasePattern, plan: ThickPlan | None = None, *,
     stowed_poses : (P, 4, 4) float, optional
         Default the plan's explicit poses at t = 1, else the construction's stowed poses.
     thickness : float, mm, optional
+    cylinder : (float, float), mm, optional
+        ``(stowed diameter, stowed height)`` already computed by the build
+        (:func:`thickpanel.figures.array_figures`, the same enclosing cylinder about the hub axis,
+        hinge hardware included); the ratio, efficiency and bound then use these values.
 
     Returns
     -------
@@ -76,9 +81,12 @@ def wrap_metrics(pattern: CreasePattern, plan: ThickPlan | None = None, *,
         t = float(info.params.get("panel_thickness", 0.0)) if thickness is None else float(thickness)
         slabs = [(p, np.asarray(pc.plate, dtype=float), -t / 2.0, t / 2.0) for p, pc in enumerate(info.pieces)]
     hub_panels = {p for p, pc in enumerate(info.pieces) if pc.kind == "hub"}
-    pts = np.vstack([_corners(poly, z0, z1, stowed_poses[p]) for p, poly, z0, z1 in slabs])
-    r_s = float(np.hypot(pts[:, 0], pts[:, 1]).max())
-    height = float(np.ptp(pts[:, 2]))
+    if cylinder is not None:
+        r_s, height = float(cylinder[0]) / 2.0, float(cylinder[1])
+    else:
+        pts = np.vstack([_corners(poly, z0, z1, stowed_poses[p]) for p, poly, z0, z1 in slabs])
+        r_s = float(np.hypot(pts[:, 0], pts[:, 1]).max())
+        height = float(np.ptp(pts[:, 2]))
     outline = pattern.vertices
     r_d = float(np.hypot(outline[:, 0], outline[:, 1]).max())
     area_out = 0.0
