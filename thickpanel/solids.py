@@ -149,11 +149,12 @@ class PartSet:
         return [p for p in self.parts if not p.attrs.get("flat_only")]
 
     def placed(self, state: FoldState | None = None) -> list[TopoDS_Shape]:
-        """The shapes of :meth:`in_state` placed for ``state`` (default: the state it was built for)."""
+        """Every part's shape placed for ``state`` (default: the state it was built for), one per
+        part in :attr:`parts` order (flat-only parts included; see :meth:`in_state`)."""
         if state is None:
-            return [p.shape for p in self.in_state(self.state)]
+            return [p.shape for p in self.parts]
         poses = self.poses(state)
-        return [occ.moved(p.frame_shape, poses[p.panel]) for p in self.in_state(state)]
+        return [occ.moved(p.frame_shape, poses[p.panel]) for p in self.parts]
 
     def __getitem__(self, name: str) -> Part:
         for p in self.parts:
