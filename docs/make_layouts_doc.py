@@ -29,9 +29,11 @@ from mpl_toolkits.mplot3d.art3d import Poly3DCollection  # noqa: E402
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+from thickpanel.crossings import crossing_pairs  # noqa: E402
 from thickpanel.errors import ThickpanelError  # noqa: E402
 from thickpanel.kinematics import DEFAULT_FULL_FOLD, fold_path, joint_slack, rigid_foldability  # noqa: E402
 from thickpanel.layouts import available_layouts, make_layout  # noqa: E402
+from thickpanel.poses import FoldState  # noqa: E402
 
 # small parameter sets per layout; several variants where the assignment or grid matters
 VARIANTS: dict[str, list[tuple[str, dict[str, Any]]]] = {
@@ -73,12 +75,17 @@ def _panel_polys(pattern: Any, poses: np.ndarray) -> list[np.ndarray]:
 
 
 def shape_of(pattern: Any, poses: np.ndarray) -> str:
-    """Heuristic name of a folded shape: stack, disc, dome, cone, folded strip or twisted strip.
+    """Name of a folded shape: first a collision check (zero-thickness crossings of non-adjacent
+    panels, thickpanel.crossings); only a state without crossings gets a shape word: stack, disc,
+    dome, cone, folded strip or twisted strip.
 
-    From the principal extents of the folded corners (thin: stack when the footprint shrank, else
-    disc), the flat sheet's aspect (strips), and for curved sheets from which of height ~ r or
-    height ~ r^2 fits the panel centres better (cone or dome).
+    The word is a heuristic from the principal extents of the folded corners (thin: stack when the
+    footprint shrank, else disc), the flat sheet's aspect (strips), and for curved sheets from which
+    of height ~ r or height ~ r^2 fits the panel centres better (cone or dome).
     """
+    hits = crossing_pairs(FoldState(pattern, np.zeros(pattern.n_creases), poses))
+    if hits:
+        return f"panels cross ({hits[0].label()} and {len(hits) - 1} more pairs): not a stowed shape"
     pts = np.concatenate(_panel_polys(pattern, poses))
     ext = np.sort(np.ptp((pts - pts.mean(0)) @ np.linalg.svd(pts - pts.mean(0), full_matrices=False)[2].T, axis=0))
     ext = ext[::-1]
@@ -227,7 +234,7 @@ def study(name: str, label: str, params: dict[str, Any], img_dir: Path) -> dict[
             at = {f"{t:g}": rep.play_mm[i].max() for i, t in enumerate(rep.fractions)}
             last = float(rep.fractions[-1])
             row["slack"] = (
-                f"{rep.max_play_mm:.3g} mm by {np.rad2deg(last * SLACK_TARGET):.0f} deg (t=0.5: "
+                f"{rep.max_play_mm:.3g} mm by {rep.largest_fold_deg[-1]:.0f} deg largest fold (t=0.5: "
                 f"{at.get('0.5', 0.0):.3g} mm; worst hinge {worst[0][0] if worst else '-'})"
             )
             states = [(float(t), rep.poses[i]) for i, t in enumerate(rep.fractions) if t > 0]
@@ -259,7 +266,9 @@ def main(out: Path = ROOT / "docs" / "layouts.md") -> None:
         f"({np.rad2deg(DEFAULT_FULL_FOLD):g} deg unless the layout gives target angles) for rigid ones, and",
         f"`joint_slack` to {np.rad2deg(SLACK_TARGET):.0f} deg for locked ones (largest hinge end-point mismatch of the",
         "least-squares fold with rigid panels). Pictures show t = 0.25, 0.5, 0.75, 1 of the fold (for locked",
-        "layouts: of the least-squares fold). The folded-shape word is a heuristic from the folded extents.",
+        "layouts: of the least-squares fold). Folded shape: a zero-thickness collision check first (panels not",
+        "joined by a hinge that pass through each other are named); only a state without crossings gets a",
+        "shape word, a heuristic from the folded extents.",
         "",
         "Hinge play figures are geometric requirements of ideal rigid panels, not a hinge design; assess",
         "stored energy, fatigue, pinch points and flight or structural qualification against the applicable",

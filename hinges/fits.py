@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 from thickpanel.errors import HingeError
 
-__all__ = ["DEVIATIONS_UM", "SIZE_RANGES_MM", "Fit", "limit_deviations", "fit"]
+__all__ = ["DEVIATIONS_UM", "SIZE_RANGES_MM", "Fit", "limit_deviations", "fit", "fit_for_play", "PLAY_FITS"]
 
 #: Upper limits of the size ranges, mm ("over previous up to and including this").
 SIZE_RANGES_MM: tuple[float, ...] = (3.0, 6.0, 10.0, 18.0, 30.0)
@@ -102,3 +102,24 @@ def fit(name: str, size_mm: float) -> Fit:
     hu, hl = limit_deviations(parts[0], size_mm)
     su, sl = limit_deviations(parts[1], size_mm)
     return Fit(name, size_mm, (size_mm + hl, size_mm + hu), (size_mm + sl, size_mm + su))
+
+
+#: Fits tried for a play budget, tightest first (each at least as loose as the one before in the
+#: table's size ranges).
+PLAY_FITS: tuple[str, ...] = ("H7/h6", "H7/g6", "H8/f7")
+
+
+def fit_for_play(play_mm: float, size_mm: float, fits: tuple[str, ...] = PLAY_FITS) -> Fit | None:
+    """The tightest fit of ``fits`` whose smallest diametral clearance is at least ``play_mm``.
+
+    A floating pin lets the two knuckles' hole axes move apart by up to the diametral clearance,
+    so a hinge that must give ``play_mm`` of radial play needs ``min_clearance >= play_mm``.
+    Returns None when no fit of the list is loose enough (the caller then opens the hole).
+    """
+    if not (play_mm >= 0.0):
+        raise HingeError(f"play budget {play_mm!r} mm must be >= 0")
+    for name in fits:
+        f = fit(name, size_mm)
+        if f.min_clearance >= play_mm - 1e-12:  # table values in um: compare past float round-off
+            return f
+    return None

@@ -13,7 +13,9 @@ so only the flat pose is a faithful shape.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import Any
 
 from thickpanel.errors import HingeError
 
@@ -22,14 +24,16 @@ from .base import Box, ExtraPart, HingeContext, HingeDesign, SideFeatures, posit
 __all__ = ["FlexureHinge", "flexure_strain", "flexure_min_length"]
 
 
-def flexure_strain(t: float, theta: float, length: float) -> float:
-    """Outer-fibre strain of a flexure web: t theta / (2 L) (Howell 2001); t, L mm, theta rad."""
-    return t * abs(theta) / (2.0 * length)
+def flexure_strain(t: float, theta: float, length: float, play: float = 0.0) -> float:
+    """Outer-fibre strain of a flexure web: t theta / (2 L) (Howell 2001) plus, with hinge play
+    ``play`` (mm) taken up by the web, the stretch play / L (conservative: all play as tension);
+    t, L mm, theta rad."""
+    return t * abs(theta) / (2.0 * length) + abs(play) / length
 
 
-def flexure_min_length(t: float, theta: float, allowable: float) -> float:
-    """Shortest free length (mm) keeping the strain at or below ``allowable``."""
-    return t * abs(theta) / (2.0 * allowable)
+def flexure_min_length(t: float, theta: float, allowable: float, play: float = 0.0) -> float:
+    """Shortest free length (mm) keeping the strain (with ``play``, mm) at or below ``allowable``."""
+    return (t * abs(theta) / 2.0 + abs(play)) / allowable
 
 
 @dataclass
@@ -40,9 +44,13 @@ class FlexureHinge:
     ----------
     web_thickness_mm : float
         0.4 mm default (common practice for polypropylene living hinges, from memory).
+    play_mm : float or mapping, optional
+        Hinge play the web must take up (one value, or ``{"C042": mm}`` per crease); it adds
+        ``play / L`` to the bending strain.
     """
 
     web_thickness_mm: float = 0.4
+    play_mm: Any = None
     name: str = "flexure"
 
     def design(self, ctx: HingeContext) -> HingeDesign:
@@ -62,17 +70,19 @@ class FlexureHinge:
             )
         length = ctx.hinge.gap
         theta = ctx.fold
-        l_min = flexure_min_length(t, theta, mat.allowable_strain)
+        pv = self.play_mm.get(ctx.cid, 0.0) if isinstance(self.play_mm, Mapping) else (self.play_mm or 0.0)
+        play = positive(self.name, "play_mm", pv, allow_zero=True)
+        l_min = flexure_min_length(t, theta, mat.allowable_strain, play)
         if length <= ctx.tol.length:
             raise HingeError(
                 f"{self.name} hinge on {ctx.cid}: the gap is {length:g} mm, no room for a web; a "
                 f"free length of at least {l_min:.3f} mm is needed"
             )
-        eps = flexure_strain(t, theta, length)
+        eps = flexure_strain(t, theta, length, play)
         if eps > mat.allowable_strain:
             raise HingeError(
                 f"{self.name} hinge on {ctx.cid}: web strain {eps:.4f} (t {t:g} mm, fold "
-                f"{abs(theta):.4f} rad, free length {length:g} mm) is over the allowable "
+                f"{abs(theta):.4f} rad, play {play:g} mm, free length {length:g} mm) is over the allowable "
                 f"{mat.allowable_strain:g} of {mat.key}; a free length of at least {l_min:.3f} mm "
                 f"would pass (widen the gap) or use a thinner web"
             )
@@ -90,5 +100,7 @@ class FlexureHinge:
         )
         info = {"strain": eps, "allowable_strain": mat.allowable_strain, "free_length": length,
                 "min_free_length": l_min}
+        if self.play_mm is not None:
+            info["play_needed_mm"] = play  # taken up by the web: already in the strain above
         return HingeDesign(ctx.hinge.crease, self.name, (SideFeatures(), SideFeatures()), (part,),
                            info)

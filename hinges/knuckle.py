@@ -14,11 +14,14 @@ table, refused below the printer's resolution.
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import Any
 
 from thickpanel.errors import HingeError
 
 from .base import Barrel, ExtraPart, HingeContext, HingeDesign, Notch, Rod, SideFeatures, knuckle_layout, positive
+from .fits import PLAY_FITS, fit_for_play
 from .fits import fit as iso_fit
 
 __all__ = ["KnuckleHinge", "STANDARD_PINS_MM", "barrel_geometry"]
@@ -95,6 +98,14 @@ class KnuckleHinge:
     length_step_mm : float
         Knuckle lengths that fill the usable length are rounded down to this step (0 = exact), so
         nearly equal hinges share barrels and pin lengths.
+    play_mm : float or mapping, optional
+        Play budget the hinge must give (e.g. from :func:`thickpanel.slack.joint_slack`): one value
+        for every hinge or ``{"C042": across}`` / ``{"C042": (across, along)}`` per crease, mm.
+        ``across`` is radial play: machined hinges take the tightest ISO 286 fit of
+        :data:`hinges.fits.PLAY_FITS` whose smallest diametral clearance covers it, else an
+        oversize hole (pin + play, the fit named in the info); printed ones at least half of it as
+        radial clearance. ``along`` widens the axial clearance. A budget the barrel cannot carry
+        (hole leaving less than the wall's half) is refused naming the hinge and the play.
     """
 
     knuckles: int = 3
@@ -109,7 +120,43 @@ class KnuckleHinge:
     printer_resolution_mm: float = 0.1
     pin_material: str = "stainless-304"
     length_step_mm: float = 0.1
+    play_mm: Any = None
     name: str = "knuckle"
+
+    def _play(self, ctx: HingeContext) -> tuple[float, float] | None:
+        """(across, along) play budget of this hinge, mm, or None."""
+        v = self.play_mm.get(ctx.cid) if isinstance(self.play_mm, Mapping) else self.play_mm
+        if v is None:
+            return None
+        try:
+            across, along = (float(v), 0.0) if isinstance(v, int | float) else (float(v[0]), float(v[1]))
+        except (TypeError, ValueError, IndexError):
+            raise HingeError(
+                f"{self.name} hinge option play_mm for {ctx.cid} = {v!r}; give mm or (across, along) mm"
+            ) from None
+        if not (across >= 0.0 and along >= 0.0 and math.isfinite(across + along)):
+            raise HingeError(
+                f"{self.name} hinge option play_mm for {ctx.cid} = {v!r}; values must be finite and >= 0 mm"
+            )
+        return across, along
+
+    def _sized_hole(self, ctx: HingeContext, d: float, wall: float, across: float) -> tuple[float, float, str, float]:
+        """(hole, pin, fit label, smallest diametral clearance) of a machined hinge with radial play."""
+        f = fit_for_play(across, d)
+        if f is not None:
+            return f.mean_hole, f.mean_shaft, f"{f.name} (play {across:g} mm)", f.min_clearance
+        base = iso_fit("H7/h6", d)
+        hole = d + across + 0.5 * (base.hole[1] - base.hole[0])
+        left = 0.5 * (d + 2 * wall - hole)
+        if left < 0.5 * wall:
+            raise HingeError(
+                f"{self.name} hinge on {ctx.cid}: play budget {across:.4g} mm needs a pin hole of {hole:.3f} mm in a "
+                f"{d + 2 * wall:g} mm barrel ({left:.3f} mm wall, below half the {wall:g} mm wall); no knuckle of "
+                f"this {ctx.thickness:g} mm panel can carry it; use thicker panels, a flexure or tape hinge, "
+                "or less play"
+            )
+        return (hole, base.mean_shaft, f"oversize hole {hole:.3f} mm (play {across:g} mm; no fit of "
+                f"{', '.join(PLAY_FITS)} is that loose)", hole - 0.5 * (base.hole[1] - base.hole[0]) - base.shaft[1])
 
     def _pin(self, ctx: HingeContext) -> tuple[float, float]:
         """(pin diameter, wall) fitted to the panel thickness; HingeError when too large."""
@@ -175,15 +222,21 @@ class KnuckleHinge:
             )
         d, wall = self._pin(ctx)
         proc = self._process(ctx)
+        play = self._play(ctx)
         if proc == "machined":
-            f = iso_fit(self.fit, d)
-            hole_d, pin_d, fit_name = f.mean_hole, f.mean_shaft, self.fit
+            if play is None:
+                f = iso_fit(self.fit, d)
+                hole_d, pin_d, fit_name, given = f.mean_hole, f.mean_shaft, self.fit, f.min_clearance
+            else:
+                hole_d, pin_d, fit_name, given = self._sized_hole(ctx, d, wall, play[0])
         else:
-            c = self._clearance(ctx)
-            hole_d, pin_d, fit_name = d + 2 * c, d, f"printed +{c:g} mm radial"
+            c = self._clearance(ctx) if play is None else max(self._clearance(ctx), 0.5 * play[0])
+            hole_d, pin_d, fit_name, given = d + 2 * c, d, f"printed +{c:g} mm radial", 2 * c
         radius = 0.5 * d + wall
         clip = barrel_geometry(ctx, self.name, 0.5 * hole_d, radius)
         axial = positive(self.name, "axial_clearance_mm", self.axial_clearance_mm, allow_zero=True)
+        if play is not None:
+            axial = max(axial, play[1])
         radial = positive(self.name, "radial_clearance_mm", self.radial_clearance_mm,
                           allow_zero=True)
         segs = knuckle_layout(ctx, self.name, int(self.knuckles), self.knuckle_length_mm, axial,
@@ -202,6 +255,9 @@ class KnuckleHinge:
         )
         info = {"knuckles": len(segs), "pin_diameter": d, "fit": fit_name,
                 "barrel_diameter": 2 * radius, "knuckle_length": segs[0][1] - segs[0][0]}
+        if play is not None:  # the hinge table's "play needed / play provided" columns
+            info.update(play_needed_mm=play[0], play_provided_mm=given, play_along_needed_mm=play[1],
+                        play_along_provided_mm=axial)
         return HingeDesign(
             ctx.hinge.crease, self.name,
             (SideFeatures(notches=_clean(sides[0]["n"]), barrels=tuple(sides[0]["b"])),

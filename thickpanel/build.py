@@ -23,7 +23,7 @@ from typing import Any
 
 import numpy as np
 
-from .build_figures import export_figures, hardware_for, hinge_reach
+from .build_figures import export_figures, hardware_for, hinge_reach, resolved_hinge_options
 from .build_result import (
     ORDER,
     SLACK_MAX_DEG,
@@ -263,6 +263,9 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         if k >= n:
             raise DesignFileError(f"[fold] driver = {d.fold.driver!r}: no such crease (C000..C{n - 1:03d})")
         kw["driver"] = k
+    if d.fold.path != "assignment":  # a chosen path among several freedoms (thickpanel.path_choice)
+        fn, why = _api("path_choice", "chosen_path")
+        kw = {"target": target, "n_states": d.fold.states, "choose": d.fold.path, "keep_symmetry": "auto"}
     with run.stage("fold path") as rec:
         try:
             path = fn(cp, **kw)
@@ -281,6 +284,10 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
                            closure_error=err, stop_reason=path.stop_reason)
         rec["note"] = (f"{len(path.states)} states, reached {_deg(reach):.1f} of {d.fold.target_deg:g} deg, "
                        f"stop: {path.stop_reason}")
+        if path.meta.get("choice", "assignment") != "assignment":
+            hit = path.meta.get("first_contact")
+            rec["note"] += f", path {path.meta['choice']} ({path.meta.get('subspace')})" + (
+                f", zero-thickness panels {hit} would cross next" if hit else "")
         short = reach < target * (1 - 1e-3)
         res.check("fold reaches target", "warn" if short else "pass", rec["note"])
 
@@ -431,10 +438,19 @@ def _clearance(run: _Run) -> None:
 def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: float) -> Any:
     """Cut the fold path before the first contact at ``tc`` and sweep the shorter path again."""
     kept = tuple(s for s in res.path.states if s.t < tc)
-    if len(kept) < 2:
+    if len(kept) < 2:  # the stowed state is then the flat one: every figure says so, not "target"
+        res.path = res.path.with_states(res.path.states[:1], stop_reason="contact")
+        res.metrics.update(fold_states=1, reached_fold_deg=0.0, stop_reason="contact")
+        for rec in res.stages:
+            if rec.get("stage") == "fold path":
+                rec["note"] = f"1 state, reached 0.0 deg: first contact at t = {tc:.3f}, before any state off flat"
+        for chk in res.checks:
+            if chk.get("check") == "fold reaches target":
+                chk.update(verdict="warn", detail=f"reached 0.0 of {res.design.fold.target_deg:g} deg: stopped at the "
+                           "first contact")  # fmt: skip
         res.check("fold stops at first contact", "fail", f"first contact at t = {tc:.3f}, before the first "
-                  "sampled state off flat")
-        return rep
+                  "sampled state off flat; the fold path ends at the flat state (0.0 deg)")
+        return sweep(res.plan, res.path, margin=rep.margin)
     res.path = res.path.with_states(kept, stop_reason="contact")  # keeps the exact-state hook
     reach = float(np.abs(kept[-1].angles).max())
     res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
@@ -467,7 +483,7 @@ def _solids(run: _Run) -> None:
     if fn is None:
         run.skip("solids", "not available", why)
         return
-    opts = dict(d.hinge.options)
+    opts = resolved_hinge_options(res)  # play_mm = "slack": each hinge's joint-slack play
     styles_fn, _ = _api("hinges", "available_hinge_styles")
     if styles_fn is not None:
         styles = list(styles_fn())

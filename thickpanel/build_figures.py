@@ -11,7 +11,7 @@ from typing import Any
 import numpy as np
 
 from .build_result import BuildResult, api
-from .errors import ThickpanelError
+from .errors import DesignFileError, ThickpanelError
 from .tolerances import DEFAULT_TOL
 
 __all__ = ["hardware_for", "hinge_reach", "export_figures", "EXPORT_KEYS"]
@@ -30,6 +30,21 @@ def _deg(x: float) -> float:
     return float(np.degrees(x))
 
 
+def resolved_hinge_options(res: BuildResult) -> dict[str, Any]:
+    """``[hinge]`` options with ``play_mm = "slack"`` replaced by each hinge's (end-point play, play
+    along the hinge) peak over the joint-slack fold, mm (DesignFileError without a slack report)."""
+    opts = dict(res.design.hinge.options)
+    if opts.get("play_mm") == "slack":
+        if res.slack is None:
+            raise DesignFileError("[hinge] play_mm = \"slack\" needs the joint-slack play of a locked pattern; "
+                                  "this pattern folds rigidly (or the slack stage did not run): give play_mm in mm")
+        sl = res.slack
+        peak = sl.play_mm.max(axis=0) if sl.play_mm.size else []
+        along = sl.along_mm.max(axis=0) if sl.along_mm.size else []
+        opts["play_mm"] = {h: (float(v), float(a)) for h, v, a in zip(sl.hinges, peak, along, strict=True)}
+    return opts
+
+
 def hardware_for(res: BuildResult) -> list[Any]:
     """Convex pieces of the design's hinge hardware (barrels, pins, boxes) for the sweep; empty when
     the hinge style adds none or its recipes cannot be made (the solids stage then says why)."""
@@ -43,10 +58,10 @@ def hardware_for(res: BuildResult) -> list[Any]:
     if cached is not None:
         return list(cached)
     try:
-        style = get_style(d.hinge.style, **dict(d.hinge.options))
+        style = get_style(d.hinge.style, **resolved_hinge_options(res))
         designs = design_fn(res.plan, style, material=d.panels.material or None)
         pieces = list(pieces_fn(res.plan, designs))
-    except (ThickpanelError, TypeError, ValueError) as exc:
+    except (ThickpanelError, TypeError, ValueError) as exc:  # DesignFileError is a ThickpanelError
         log.info("hinge hardware left out of the clearance sweep: %s", exc)
         return []
     res.plan.meta[("hardware", d.hinge.style, repr(sorted(d.hinge.options.items())))] = pieces

@@ -124,6 +124,7 @@ class FoldSpec:
     states: int
     driver: str
     stop_at_contact: bool
+    path: str = "assignment"
 
     @property
     def target(self) -> float:
@@ -599,7 +600,10 @@ class _Validator:
         drv = v["driver"]
         if drv and (drv[0] != "C" or not drv[1:].isdigit()):
             raise self.fail(f"[fold] driver = {drv!r} is not a crease id (like \"C012\")")
-        return FoldSpec(v["target_deg"], v["states"], drv, v["stop_at_contact"])
+        if drv and v["path"] != "assignment":
+            raise self.fail(f"[fold] driver = {drv!r} and path = {v['path']!r} exclude each other; the chosen paths "
+                            "are driven by the largest fold")  # fmt: skip
+        return FoldSpec(v["target_deg"], v["states"], drv, v["stop_at_contact"], v["path"])
 
     def exports(self) -> ExportSpec:
         t = self.section("exports")

@@ -113,6 +113,11 @@ SCHEMA: tuple[Key, ...] = (
     Key("fold", "driver", "str", "", "", "Crease id driving the fold (`C012`); empty: fold fraction of the "
         "largest fold."),
     Key("fold", "stop_at_contact", "bool", "", False, "End the fold path at the first panel contact."),
+    Key("fold", "path", "str", "", "assignment", "How the fold path chooses among several degrees of freedom: "
+        "`assignment` (the direction the crease signs give), `symmetric` (keep the rotational symmetry) or "
+        "`clearance` (keep panels not joined by a crease furthest apart, never unfolding a crease; inside the "
+        "symmetric subspace when the pattern has a rotational symmetry); the chosen paths stop where "
+        "zero-thickness panels would cross.", choices=("assignment", "symmetric", "clearance")),
     Key("exports", "formats", "list[str]", "", ["step", "stl", "bom"], "Export formats "
         "(`thickpanel.export.available_formats()`)."),
     Key("exports", "states", "list[float]", "-", [0.0, 1.0], "Fold fractions t to export the assembly at "

@@ -441,6 +441,7 @@ def _refine(path: FoldPath, t: float) -> FoldState:
 def _meta(tr: _Tracker, target: float, reached: float) -> dict[str, Any]:
     return {
         "solver": "kinematics",
+        "choice": "assignment",  # the direction the assignment's signs give (path_choice offers others)
         "target": target,
         "reachable": reached,
         "driver_unknown": tr.driver,
@@ -507,8 +508,8 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
 
 
 def joint_slack(pattern: CreasePattern, *, target: float | None = None, n_states: int = 10,
-                tol: Tolerances = DEFAULT_TOL) -> SlackReport:  # fmt: skip
+                path: FoldPath | None = None, tol: Tolerances = DEFAULT_TOL) -> SlackReport:  # fmt: skip
     """Hinge play a locked pattern needs; see :func:`thickpanel.slack.joint_slack`."""
     from .slack import joint_slack as _js
 
-    return _js(pattern, target=target, n_states=n_states, tol=tol)
+    return _js(pattern, target=target, n_states=n_states, path=path, tol=tol)

@@ -34,7 +34,7 @@ from scipy.spatial.transform import Rotation
 from .errors import FoldError
 from .kinematics import DEFAULT_FULL_FOLD, _default_target, _start_direction, loop_model, require_closed_flat
 from .pattern import CreasePattern, cid
-from .poses import _graph_edges, edge_transforms
+from .poses import FoldPath, _graph_edges, edge_transforms
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray, IntArray
 
@@ -83,6 +83,10 @@ class SlackReport:
     stop_reason : str
         ``target``, or ``stalled`` when the least-squares fold could not reach a fraction (some
         hinge would have to pass 180 deg); the rows then end at the last fraction reached.
+    start : str
+        Where the poses came from: ``assignment direction`` (least squares continued from flat
+        along the assignment's fold direction) or ``fold path (<choice>)`` (the states of a given
+        rigid fold path, measured as they are).
     """
 
     fractions: FloatArray
@@ -96,6 +100,13 @@ class SlackReport:
     target: float
     poses: FloatArray
     stop_reason: str = "target"
+    start: str = "assignment direction"
+
+    @property
+    def largest_fold_deg(self) -> FloatArray:
+        """(k,) degrees: the largest hinge fold of each row's state, the fold the row refers to
+        (the fraction t is of the nominal target, and the largest hinge may run ahead of it)."""
+        return np.abs(self.fold_deg).max(axis=1) if self.fold_deg.size else np.zeros(len(self.fractions))
 
     @property
     def max_play_mm(self) -> float:
@@ -118,6 +129,7 @@ class SlackReport:
             out.append(
                 {
                     "t": float(t),
+                    "largest_fold_deg": float(self.largest_fold_deg[k]),
                     "total_mm": float(self.total_mm[k]),
                     "worst_along_mm": float(self.along_mm[k, j]) if self.along_mm.size else 0.0,
                     "worst_across_mm": float(self.across_mm[k, j]) if self.across_mm.size else 0.0,
@@ -131,12 +143,13 @@ class SlackReport:
         lines = [
             f"joint slack to {np.rad2deg(self.target):.4g} deg: largest hinge play {self.max_play_mm:.4g} mm"
             + ("" if self.stop_reason == "target" else f" (stalled after t = {self.fractions[-1]:g})"),
-            "     t   total mm   along mm  across mm  off-axis deg",
+            f"poses from: {self.start}",
+            "     t  largest fold deg   total mm   along mm  across mm  off-axis deg",
         ]
         for r in self.rows():
             lines.append(
-                f"{r['t']:6.3f} {r['total_mm']:10.4g} {r['worst_along_mm']:10.4g} {r['worst_across_mm']:10.4g} "
-                f"{r['worst_off_axis_deg']:13.4g}"
+                f"{r['t']:6.3f} {r['largest_fold_deg']:17.4g} {r['total_mm']:10.4g} {r['worst_along_mm']:10.4g} "
+                f"{r['worst_across_mm']:10.4g} {r['worst_off_axis_deg']:13.4g}"
             )
         lines.append("worst hinges: " + ", ".join(f"{h} {v:.4g} mm" for h, v in self.worst()))
         lines.append(SLACK_CAUTION)
@@ -148,6 +161,7 @@ def joint_slack(
     *,
     target: float | None = None,
     n_states: int = 10,
+    path: FoldPath | None = None,
     tol: Tolerances = DEFAULT_TOL,
 ) -> SlackReport:
     """Least-squares fold of ``pattern`` with rigid panels and imperfect hinges.
@@ -160,6 +174,11 @@ def joint_slack(
         pattern's largest target angle or :data:`thickpanel.kinematics.DEFAULT_FULL_FOLD`.
     n_states : int
         Fold fractions evenly spaced from 0 to 1 (>= 2).
+    path : FoldPath, optional
+        A rigid fold path of ``pattern`` (e.g. from :func:`thickpanel.path_choice.chosen_path`):
+        its states are measured instead of the least-squares fold, so a rigid fold that the
+        least-squares continuation from flat would miss (a local minimum) shows its zero play.
+        ``target`` and ``n_states`` are then ignored.
     tol : Tolerances
         ``tol.length`` is the solver's stopping tolerance on hinge mismatch (mm).
 
@@ -183,6 +202,8 @@ def joint_slack(
     if int(n_states) < 2:
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (flat and target states)")
     prob = _Problem(pattern, model.base, _start_direction(model), model.var_crease, tol)
+    if path is not None:
+        return _from_path(prob, path, pattern)
     fractions = np.linspace(0.0, 1.0, int(n_states))
     poses = np.broadcast_to(np.eye(4), (pattern.n_panels, 4, 4)).copy()
     rows = []
@@ -207,6 +228,22 @@ def joint_slack(
     return SlackReport(
         fractions, hinges, along, across, tilt, fold, total, end, tgt, all_poses, "stalled" if stalled else "target"
     )
+
+
+def _from_path(prob: _Problem, path: FoldPath, pattern: CreasePattern) -> SlackReport:
+    """Hinge play measured on the states of a given fold path (zero for a rigid path)."""
+    if not path.states or path.states[0].pattern is not pattern and path.states[0].pattern != pattern:
+        raise FoldError(f"fold path given to joint_slack belongs to another pattern than {pattern.name!r}")
+    poses = np.array([np.asarray(st.poses) @ np.linalg.inv(np.asarray(st.poses)[prob.base]) for st in path.states])
+    rows = [prob.measure(p) for p in poses]
+    along, across, tilt, fold, end = (np.array([r[i] for r in rows]) for i in range(5))
+    total = np.sqrt((end**2).sum(axis=1))
+    poses.setflags(write=False)
+    tgt = float(path.meta.get("target", np.abs(path.states[-1].angles).max()))
+    choice = path.meta.get("choice", path.meta.get("solver", "given"))
+    return SlackReport(path.fractions, tuple(cid(int(c)) for c in prob.edges[:, 2]), along, across, tilt, fold, total,
+                       end, tgt, poses, "target" if path.stop_reason == "target" else "stalled",
+                       f"fold path ({choice})")  # fmt: skip
 
 
 class _Problem:

@@ -23,9 +23,10 @@ cell (Tachi 2009; Evans et al. 2015); otherwise the pattern is locked in the fla
 
 from __future__ import annotations
 
+import re
 from collections import deque
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sp
@@ -333,12 +334,15 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
     except FoldError as exc:
         if "does not fold rigidly" not in str(exc):
             raise
-        where = locked_where(model, _tracker(model, None, tol).direction, tol=tol)
-        return RigidVerdict(
-            "locked", 0, tuple(where),
-            "the general solver finds no rigid fold off the flat state near the assignment's direction; the loops "
-            "stay open (least-squares residual) first at the vertices listed",
-        )  # fmt: skip
+        sym_path, sym_note = _symmetric_probe(pattern, model, tol)
+        if sym_path is None:
+            where = locked_where(model, _tracker(model, None, tol).direction, tol=tol)
+            return RigidVerdict(
+                "locked", 0, tuple(where),
+                "the general solver finds no rigid fold off the flat state near the assignment's direction; the loops "
+                "stay open (least-squares residual) first at the vertices listed" + sym_note,
+            )  # fmt: skip
+        path = sym_path
     except (np.linalg.LinAlgError, ArithmeticError, RuntimeError) as exc:
         return RigidVerdict("unknown", -1, (), f"the solver failed: {exc}", 0.0)
     first = path.states[1] if len(path.states) > 1 else path.states[0]
@@ -350,6 +354,9 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
         return RigidVerdict("unknown", -1, (), f"rank of the Jacobian off flat could not be found: {exc}")
     reach = float(path.meta.get("reachable", 0.0))
     how = (cf.reason + "; multipliers compose to 1 around every cell") if cf is not None else "general path following"
+    if path.meta.get("solver") == "path_choice":
+        how = (f"path following in the {path.meta['subspace']} subspace from a second-order start (the "
+               "assignment's own start direction locks)")  # fmt: skip
     if path.stop_reason == "lock":
         return RigidVerdict(
             "rigid", dof, (),
@@ -359,3 +366,31 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
         "rigid", dof, (),
         f"{how}; followed to {np.rad2deg(reach):.4g} deg with closure error below {tol.closure:g}", reach,
     )  # fmt: skip
+
+
+def _symmetric_probe(pattern: CreasePattern, model: LoopModel, tol: Tolerances) -> tuple[Any, str]:
+    """Second chance for a pattern whose default start locks: a fold inside its rotationally
+    symmetric subspace from a second-order feasible start (:mod:`thickpanel.path_choice`).
+
+    Returns (path to :data:`PROBE_FOLD` or None, a clause for the locked verdict's reason).
+    """
+    from .path_choice import chosen_path
+    from .symmetry import rotational_symmetry
+
+    sym = rotational_symmetry(model, tol=tol)
+    if sym.order < 2:
+        return None, ""
+    try:
+        path = chosen_path(pattern, choose="symmetric", target=PROBE_FOLD, n_states=3, stop_at_crossing=False, tol=tol)
+    except FoldError as exc:
+        ob = re.search(r"obstruction ([0-9.eE+-]+)", str(exc))
+        if ob:
+            return None, (
+                f"; no fold leaves flat inside the {sym.order}-fold symmetric subspace either (second-order "
+                f"obstruction {float(ob.group(1)):.3g}: no first-order direction there closes at second order)"
+            )
+        return None, f"; the {sym.order}-fold symmetric subspace was tried too ({exc})"
+    if path.stop_reason != "target":
+        reach = np.rad2deg(float(path.meta["reachable"]))
+        return None, f"; inside the {sym.order}-fold symmetric subspace the fold stops at {reach:.3g} deg"
+    return path, ""
