@@ -192,3 +192,17 @@ def test_thick_backing_never_stretches_other_hubs(m: int, r: int) -> None:
 
     cp = make_layout("hub-wrap", sides=m, rings=r, ring_height=60.0, hub_circumradius=100.0, panel_thickness=1.0)
     assert backing_strain(cp).stretch <= 1e-6
+
+
+def test_thick_sheet_flat_foldability_is_judged_on_its_reference(thick) -> None:
+    """The thick development's creases bound bare backing strips; Kawasaki 1989 and Maekawa/Justin are
+    checked on the zero-thickness reference sheet of the same hub, where only the hub corners fail."""
+    from thickpanel.build_wrap import hub_exemption, kawasaki_scope
+
+    cp, _ = thick
+    subject, note = kawasaki_scope(cp)
+    assert subject is not cp and "zero-thickness reference" in note
+    assert wrap_info(subject).params["panel_thickness"] == 0.0
+    rep = check_foldability(subject)
+    assert sorted(hub_exemption(subject, list(rep.failing))) == sorted(rep.failing)
+    assert len(rep.failing) == 6

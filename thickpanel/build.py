@@ -165,16 +165,17 @@ def _foldability(run: _Run, cp: Any) -> None:
         res.check("flat-foldable vertices", "could not run", why)
         return
     with run.stage("foldability") as rec:
-        rep = fn(cp)
+        subject, scope = kawasaki_scope(cp)
+        rep = fn(subject)
         res.foldability = rep
         text = rep.summary() if hasattr(rep, "summary") else str(rep)
         rec["note"] = text.splitlines()[0] if text else ""
         failing = list(getattr(rep, "failing", []) or [])
-        exempt = hub_exemption(cp, failing)
+        exempt = hub_exemption(subject, failing)
         if exempt:  # hub corners of a hub-wrap sheet: Kawasaki does not apply there
             failing = [v for v in failing if v not in exempt]
             rec["note"] += f"; hub corners exempt (Kawasaki does not apply at the hub): {', '.join(exempt)}"
-        rec["note"] += kawasaki_scope(cp)
+        rec["note"] += scope
         if rep.ok or (exempt and not failing):
             res.check("flat-foldable vertices", "pass", rec["note"])
         else:

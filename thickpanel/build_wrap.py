@@ -42,13 +42,21 @@ def hub_exemption(pattern: Any, failing: list[Any]) -> list[str]:
     return sorted(str(v) for v in failing if str(v) in hub)
 
 
-def kawasaki_scope(pattern: Any) -> str:
-    """Note for the flat-foldability check of a thick hub-wrap sheet (empty otherwise)."""
+def kawasaki_scope(pattern: Any) -> tuple[Any, str]:
+    """The sheet whose flat-foldability is checked, and a note saying so.
+
+    A thick hub-wrap sheet's creases bound bare backing strips, so Kawasaki's and Maekawa's conditions
+    (zero-thickness properties) are checked on its zero-thickness reference sheet (same hub, rings,
+    ring height), whose development it is; any other pattern is checked as it is.
+    """
     info = wrap_info(pattern) if pattern is not None else None
     if info is None or float(info.params.get("panel_thickness", 0.0)) <= 0:
-        return ""
-    return ("; this thick sheet's creases bound bare backing strips, so Kawasaki's condition (a zero-thickness "
-            "property) applies to its zero-thickness reference sheet (panel_thickness = 0), not to it")
+        return pattern, ""
+    from .layouts.hub_wrap import reference_sheet
+
+    return reference_sheet(pattern), ("; checked on the zero-thickness reference sheet of the same hub, rings and "
+                                      "ring height (this thick sheet is its development: its creases bound bare "
+                                      "backing strips, where Kawasaki's condition does not apply)")
 
 
 def wrap_rigidity_stage(res: BuildResult, rec: dict[str, Any], require_rigid: bool) -> None:

@@ -21,7 +21,7 @@ from ..wrap.zero import zero_thickness_pieces
 from . import register_layout, register_panel_estimate
 from .assignment import LayoutInfo, attach_info
 
-__all__ = ["hub_wrap", "hub_wrap_panels", "deployed_circumradius"]
+__all__ = ["hub_wrap", "hub_wrap_panels", "deployed_circumradius", "reference_sheet"]
 
 MAX_SIDES = 64
 MAX_RINGS = 200
@@ -173,6 +173,19 @@ def hub_wrap(
                                                               if not isinstance(v, str)},
                                0.0, info.hub_vertices))
     return cp
+
+
+def reference_sheet(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) -> CreasePattern | None:
+    """The zero-thickness sheet of the same hub, rings, ring height and sense as a thick ``hub-wrap``
+    sheet (the sheet itself when it has zero thickness; None for other patterns)."""
+    info = wrap_info(pattern)
+    if info is None:
+        return None
+    p = info.params
+    if float(p.get("panel_thickness", 0.0)) <= 0:
+        return pattern
+    return hub_wrap(int(p["sides"]), int(p["rings"]), float(p["ring_height"]), float(p["hub_circumradius"]),
+                    wrap=str(p.get("wrap", "ccw")), name=f"{pattern.name} (zero-thickness reference)", tol=tol)
 
 
 def _gore_of(cp: CreasePattern, c: int, info: object) -> int:
