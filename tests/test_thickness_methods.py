@@ -15,7 +15,7 @@ from thickpanel.thickness.layers import clip_convex, layer_order
 from thickpanel.thickness.offset_panel import reference_height
 from thickpanel.tolerances import Tolerances
 
-METHODS = ["hinge-shift", "membrane-gap", "offset-crease", "offset-panel", "plain", "tapered"]
+METHODS = ["hinge-shift", "membrane-gap", "offset-crease", "offset-panel", "plain", "tapered", "wrap-backing"]
 
 
 def test_registry_lists_every_method_and_rejects_unknown():
@@ -61,6 +61,8 @@ def test_plans_have_one_slab_per_panel_and_one_hinge_per_folding_crease():
     for m in METHODS:
         if m == "offset-crease":
             continue  # needs an interior vertex, tested below
+        if m == "wrap-backing":
+            continue  # hub-wrap sheets only (tests/test_wrap_pipeline.py)
         plan = make_plan(cp, m, thickness=2.0, target_fold=math.radians(120), path=path)
         assert plan.method == m
         assert [s.panel for s in plan.slabs] == [0, 1]
@@ -147,6 +149,7 @@ def test_methods_for_reasons_and_order():
     assert all(isinstance(a, MethodAdvice) for a in adv)
     assert {a.method for a in adv} == set(METHODS)
     by = {a.method: a for a in adv}
+    assert not by["wrap-backing"].applies and "hub-wrap" in by["wrap-backing"].reason
     assert not by["tapered"].applies and "reachable limit" in by["tapered"].reason
     assert 0 < by["tapered"].reachable < math.pi
     assert not by["offset-crease"].applies or by["offset-crease"].reachable <= math.pi

@@ -35,6 +35,15 @@ from .build_result import (
     _Run,
     default_out_dir,
 )
+from .build_wrap import (
+    clearance_path,
+    hub_exemption,
+    is_wrap_sheet,
+    kawasaki_scope,
+    wrap_fold_path_stage,
+    wrap_metrics_into,
+    wrap_rigidity_stage,
+)
 from .design import Design, suggest
 from .envelope import diameter
 from .errors import DesignFileError, HingeError, ThicknessError, ThickpanelError
@@ -156,12 +165,18 @@ def _foldability(run: _Run, cp: Any) -> None:
         res.check("flat-foldable vertices", "could not run", why)
         return
     with run.stage("foldability") as rec:
-        rep = fn(cp)
+        subject, scope = kawasaki_scope(cp)
+        rep = fn(subject)
         res.foldability = rep
         text = rep.summary() if hasattr(rep, "summary") else str(rep)
         rec["note"] = text.splitlines()[0] if text else ""
         failing = list(getattr(rep, "failing", []) or [])
-        if rep.ok:
+        exempt = hub_exemption(subject, failing)
+        if exempt:  # hub corners of a hub-wrap sheet: Kawasaki does not apply there
+            failing = [v for v in failing if v not in exempt]
+            rec["note"] += f"; hub corners exempt (Kawasaki does not apply at the hub): {', '.join(exempt)}"
+        rec["note"] += scope
+        if rep.ok or (exempt and not failing):
             res.check("flat-foldable vertices", "pass", rec["note"])
         else:
             verdict = "fail" if d.checks.require_flat_foldable else "warn"
@@ -171,6 +186,10 @@ def _foldability(run: _Run, cp: Any) -> None:
 
 def _rigidity(run: _Run, cp: Any) -> None:
     res, d = run.res, run.res.design
+    if is_wrap_sheet(cp):  # structural verdict; the deployment's compliance replaces joint slack
+        with run.stage("rigidity") as rec:
+            wrap_rigidity_stage(res, rec, d.checks.require_rigid)
+        return
     fn, why = _api("kinematics", "rigid_foldability")
     if fn is None:
         run.skip("rigidity", "not available", why)
@@ -219,6 +238,10 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
     res, d = run.res, run.res.design
     if run.blocked:
         run.skip("fold path", "blocked", run.blocked)
+        return
+    if is_wrap_sheet(cp):  # the stowed state is the construction's, not the rigid solver's
+        with run.stage("fold path") as rec:
+            wrap_fold_path_stage(res, rec, d.fold.states)
         return
     fn, why = _api("kinematics", "fold_path")
     if fn is None:
@@ -388,7 +411,10 @@ def _clearance(run: _Run) -> None:
         # the bound "at least the margin" (the sweep's own default margin is one thickness)
         margin = max(5.0 * max(sl.thickness for sl in res.plan.slabs), 2.0 * d.checks.min_clearance)
         extra = hardware_for(res)
-        rep = fn(res.plan, res.path, margin=margin, extra_pieces=extra or None)
+        if is_wrap_sheet(res.pattern):  # exact end states only (deployed, stowed); see build_wrap
+            rep = fn(res.plan, clearance_path(res.path), margin=margin, extra_pieces=extra or None, refine=False)
+        else:
+            rep = fn(res.plan, res.path, margin=margin, extra_pieces=extra or None)
         first = getattr(rep, "first_contact", None)
         if d.fold.stop_at_contact and first:
             rep = _stop_at_contact(res, fn, rep, float(first[0]))
@@ -445,6 +471,8 @@ def _envelope(res: BuildResult) -> None:
     got = res.poses_at(ts)
     res.metrics.update(array_figures(res.state_figures(0.0), res.state_figures(ts), res.metrics["deployed_area_mm2"]))
     res.metrics["envelope_from"] = got[1] if got else None
+    if is_wrap_sheet(res.pattern):  # deployed diameter about the hub axis, ratio, packaging, volume bound
+        wrap_metrics_into(res)
 
 
 def _solids(run: _Run) -> None:

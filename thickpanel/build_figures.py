@@ -21,7 +21,8 @@ log = logging.getLogger("thickpanel")
 EXPORT_KEYS = ("panels", "parts", "total_volume_mm3", "total_mass_g", "deployed_area_mm2", "deployed_diameter_mm",
                "envelope", "cylinder", "deployed_envelope_mm", "stowed_envelope_mm", "stowed_diameter_mm",
                "stowed_height_mm", "stowed_state_t", "stowed_fold_deg", "packing_ratio", "min_clearance_mm",
-               "min_clearance_lower_bound", "min_clearance_text", "min_clearance_where")
+               "min_clearance_lower_bound", "min_clearance_text", "min_clearance_where",
+               "diameter_ratio", "packaging_efficiency", "stowed_radius_bound_mm")  # last three: hub-wrap
 """Summary figures every ``metrics.json`` of a build repeats unchanged."""
 
 

@@ -287,7 +287,7 @@ def counted_neighbours(plan: ThickPlan, arrays: Any, tol: Tolerances = DEFAULT_T
 
 # ---------------------------------------------------------------------------- one state
 def _plan_poses(plan: ThickPlan, state: FoldState, on_reference: bool) -> FloatArray:
-    if on_reference:
+    if on_reference and not plan.explicit_poses and not plan.follow_state:
         return np.asarray(state.poses)
     return plan.poses(state)
 

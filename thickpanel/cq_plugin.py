@@ -56,11 +56,15 @@ class ArrayModel:
         return self.result.path.at(float(t))
 
     def shapes(self, t: float = 1.0) -> list[tuple[str, cq.Shape]]:
-        """``(name, cq.Shape)`` of every part placed at fold fraction ``t``."""
+        """``(name, cq.Shape)`` of every part placed at fold fraction ``t`` (a flexible backing only
+        in the flat state, see :meth:`thickpanel.solids.PartSet.in_state`)."""
         import cadquery as cq
 
-        placed = self.result.parts.placed(self.state(t))
-        return [(p.name, cq.Shape.cast(s)) for p, s in zip(self.result.parts.parts, placed, strict=True)]
+        st = self.state(t)
+        ps = self.result.parts
+        shown = {id(p) for p in ps.in_state(st)}
+        placed = ps.placed(st)
+        return [(p.name, cq.Shape.cast(s)) for p, s in zip(ps.parts, placed, strict=True) if id(p) in shown]
 
     def compound(self, t: float = 1.0) -> cq.Compound:
         """All parts at fold fraction ``t`` as one ``cq.Compound``."""

@@ -1,7 +1,10 @@
 """`make demo`: run ``thickpanel build`` on the flagship example and say where everything went.
 
-The flagship is ``examples/sun-shade-disc.toml``, a 1.2 m spiral sun-shade disc (the bundled
-starter of the same name when the examples folder is not there, e.g. in an installed copy).
+The flagship is ``examples/field-shade-mast.toml``, a 2 m field sun-shade of 3 mm plates on a
+polyimide backing that furls round a hexagonal mast collar (``hub-wrap`` layout, ``wrap-backing``
+method): its report shows the deployed and the stowed state side by side with the stowed
+diameter, height, diameter ratio, packaging efficiency and the volume bound (the bundled starter of
+the same name when the examples folder is not there, e.g. in an installed copy).
 Exports go to ``exports/<name>/`` in the current directory.
 """
 
@@ -10,7 +13,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-FLAGSHIP = "sun-shade-disc"
+FLAGSHIP = "field-shade-mast"
 
 
 def flagship_file() -> Path:

@@ -197,10 +197,15 @@ class Design:
                 params = dict(lay.params)
                 check_layout_size(str(lay.family), params)
                 try:
-                    if "name" in inspect.signature(fn).parameters and "name" not in params:
-                        params["name"] = self.name
+                    sig = inspect.signature(fn).parameters
                 except (TypeError, ValueError):
-                    pass
+                    sig = {}  # type: ignore[assignment]
+                if "name" in sig and "name" not in params:
+                    params["name"] = self.name
+                # a layout that builds thick panels itself (hub-wrap) takes the thickness stated once
+                # in [panels]; only when the generator has the keyword and [layout] does not set it
+                if "panel_thickness" in sig and "panel_thickness" not in params:
+                    params["panel_thickness"] = self.panels.thickness
                 cp = fn(**params)
         except DesignFileError:
             raise

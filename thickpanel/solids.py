@@ -140,8 +140,17 @@ class PartSet:
             return np.tile(np.eye(4), (self.plan.pattern.n_panels, 1, 1))
         return self.plan.poses(state)
 
+    def in_state(self, state: FoldState | None) -> list[Part]:
+        """The parts shown in ``state``: all of them flat (``None`` or t = 0); in a folded state
+        the parts marked ``attrs["flat_only"]`` (a flexible backing, not rigid) are left out."""
+        t = float(getattr(state, "t", 0.0)) if state is not None else 0.0
+        if state is None or t == 0.0:
+            return list(self.parts)
+        return [p for p in self.parts if not p.attrs.get("flat_only")]
+
     def placed(self, state: FoldState | None = None) -> list[TopoDS_Shape]:
-        """Every part's shape placed for ``state`` (default: the state it was built for)."""
+        """Every part's shape placed for ``state`` (default: the state it was built for), one per
+        part in :attr:`parts` order (flat-only parts included; see :meth:`in_state`)."""
         if state is None:
             return [p.shape for p in self.parts]
         poses = self.poses(state)
@@ -283,7 +292,8 @@ def build_parts(
         for ex in des.extras:
             parts.append(_extra_part(ex, fr, h.panels[ex.follows], cache, poses))
     sheet_fn = getattr(style, "plan_parts", None)
-    for sp in (sheet_fn(plan) if callable(sheet_fn) else []):
+    # sheets the thickness method made (a backing membrane) and those of the hinge style
+    for sp in list(plan.meta.get("sheet_parts", ())) + list(sheet_fn(plan) if callable(sheet_fn) else []):
         parts.append(_sheet_part(sp, plan, state, poses))
     return PartSet(parts, plan, getattr(style, "name", str(hinge_style)), designs, state,
                    tol)
@@ -575,7 +585,8 @@ def _sheet_part(sp: Any, plan: ThickPlan, state: FoldState | None,
     body = occ.prism(outline, sp.z0, sp.z1)
     if not occ.check_shape(body):
         raise GeometryError(f"{sp.name}: membrane solid is invalid (BRepCheck)")
-    panel = state.base_panel if state is not None else plan.slabs[0].panel
+    panel = int(sp.attrs["panel"]) if "panel" in sp.attrs else (
+        state.base_panel if state is not None else plan.slabs[0].panel)
     shape = body if poses is None else occ.moved(body, poses[panel])
     return Part(sp.name, sp.kind, shape, body, sp.material, occ.volume(body),
                 panel, sp.z1 - sp.z0, float(polygon_area(outline)), outline, [], [], 0, (),

@@ -113,8 +113,9 @@ def _state(ps: PartSet, opt: ExportOptions) -> Any:
 def _step(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
     from .step import step_bytes
 
-    poses = ps.poses(_state(ps, opt))
-    items = [(p.name, p.pieces, poses[p.panel]) for p in ps.parts]
+    st = _state(ps, opt)
+    poses = ps.poses(st)
+    items = [(p.name, p.pieces, poses[p.panel]) for p in ps.in_state(st)]
     return {opt.top("assembly", "step", state=True): step_bytes(items, name=opt.name,
                                                                  schema=opt.step_schema)}
 
@@ -147,9 +148,11 @@ def _stl(ps: PartSet, opt: ExportOptions) -> dict[str, bytes]:
         out = {f"stl/{p.name}.stl": stl_bytes([transform(m, shop_location(p))], name=p.name)
                for p, m in zip(ps.parts, meshes, strict=True)}
     if opt.wants("state"):
-        poses = ps.poses(_state(ps, opt))
+        st = _state(ps, opt)
+        poses = ps.poses(st)
+        shown = {id(p) for p in ps.in_state(st)}  # a flat-only backing is left out of folded states
         out[opt.top("assembly", "stl", state=True)] = stl_bytes(
-            [transform(m, poses[p.panel]) for p, m in zip(ps.parts, meshes, strict=True)],
+            [transform(m, poses[p.panel]) for p, m in zip(ps.parts, meshes, strict=True) if id(p) in shown],
             name=opt.name)
     return out
 

@@ -75,6 +75,10 @@ def metrics(partset: PartSet, state: Any = None, clearance: Any = None, *,
         out.update(_own_state_figures(partset, st))
         if clearance is not None:
             out.update(clearance_figures(clearance))
+        from ..wrap.metrics import wrap_metrics
+
+        # hub-wrap arrays: deployed diameter about the hub axis and the stowed-annulus figures
+        out.update({k: round(v, 6) for k, v in wrap_metrics(partset.plan.pattern, partset.plan).items()})
     else:
         out.update(figures)
     return out

@@ -88,7 +88,7 @@ def _bodies(ps: Any, meshes: Sequence[Mesh]) -> list[tuple[str, Mesh]]:
         v = np.vstack(vs)
         bodies.append(("BAND", (v - v.min(axis=0), np.vstack(fs))))
     for k, p in enumerate(parts):
-        if k in band:
+        if k in band or p.attrs.get("cut_sheet"):  # a film cut to a DXF sheet is not printed
             continue
         v, f = transform(meshes[k], shop_location(p))
         bodies.append((p.name, (v - v.min(axis=0), f)))

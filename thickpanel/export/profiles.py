@@ -19,6 +19,7 @@ from hinges.fits import fit as iso_fit
 
 from ..errors import ThickpanelError
 from ..geometry2d import polygon_area
+from ..pattern import pid
 from ..solids import Part
 from ..typing import FloatArray
 from .dxf_doc import dxf_document_bytes, new_dxf_document
@@ -97,6 +98,16 @@ def profile_dxf_bytes(part: Part, slab: Any = None, fits: dict[float, str] | Non
     pts = [tuple(map(float, p + shift)) for p in outline]
     msp.add_lwpolyline(pts, close=True, dxfattribs={"layer": "OUTLINE"})
     size = max(2.0, 0.04 * float(np.ptp(outline, axis=0).max()))  # text height, mm
+    bonded = part.attrs.get("bonded", ())
+    if bonded:  # a backing cut sheet: where each plate is bonded, with its id
+        doc.layers.add("BONDED")
+        for panel, poly in bonded:
+            q = np.asarray(poly, dtype=float) + shift
+            msp.add_lwpolyline([tuple(map(float, x)) for x in q], close=True, dxfattribs={"layer": "BONDED"})
+            span = float(np.ptp(q, axis=0).min())
+            msp.add_text(pid(int(panel)), height=max(0.5, min(0.5 * size, 0.25 * span)),
+                         dxfattribs={"layer": "BONDED"}).set_placement(
+                tuple(map(float, q.mean(axis=0))), align=ezdxf.enums.TextEntityAlignment.MIDDLE_CENTER)
     lo = outline.min(axis=0) + shift
     centre = outline.mean(axis=0) + shift
     label = f"{part.name}  t = {part.thickness:g} mm"

@@ -349,6 +349,9 @@ def render_report(res: Any) -> str:
                      else '<p class="note">Crease drawing: not available.</p>')
     except Exception as exc:  # noqa: BLE001 - a drawing failure must not lose the whole report
         parts.append(f'<p class="note">Crease drawing failed: {_e(exc)}</p>')
+    from .report_wrap import wrap_section
+
+    parts.append(wrap_section(res))  # hub-wrap arrays: deployed and stowed side by side, stowed figures
     parts += ["<h2>Fold sequence</h2>",
               f'<p class="note">Renders at fold fractions t = 0 (deployed) to 1 (stowed), from the '
               f'{_e(m.get("envelope_from", "fold path"))}.</p>',

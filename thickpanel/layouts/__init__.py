@@ -28,7 +28,7 @@ _REGISTRY: dict[str, LayoutFn] = {}
 EstimateFn = Callable[..., int]
 _ESTIMATES: dict[str, EstimateFn] = {}
 # modules that register layouts when imported; imported lazily on first registry use
-_MODULES = ("classic", "spiral", "cylinder")
+_MODULES = ("classic", "spiral", "cylinder", "hub_wrap")
 
 
 def register_layout(name: str, fn: LayoutFn) -> LayoutFn:

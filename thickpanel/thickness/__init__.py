@@ -2,7 +2,8 @@
 
 Registry of methods (one module each, formulas and sources in their docstrings and in
 ``docs/methods.md``): ``tapered``, ``offset-panel``, ``offset-crease``, ``membrane-gap``,
-``hinge-shift`` and the ``plain`` baseline. :func:`make_plan` builds one by name;
+``hinge-shift``, ``wrap-backing`` (hub-wrap sheets only) and the ``plain`` baseline.
+:func:`make_plan` builds one by name;
 :func:`methods_for` says which apply to a pattern and why, in recommendation order.
 """
 
@@ -15,7 +16,7 @@ from typing import TYPE_CHECKING, Any
 
 from ..errors import ThicknessError, ThickpanelError
 from ..tolerances import DEFAULT_TOL, Tolerances
-from . import hinge_shift, membrane_gap, offset_crease, offset_panel, plain, tapered
+from . import hinge_shift, membrane_gap, offset_crease, offset_panel, plain, tapered, wrap_backing
 from .plan import CutPlane, HingeLine, Slab, Standoff, ThickPlan
 
 if TYPE_CHECKING:
@@ -45,7 +46,7 @@ rad)``, raising :class:`~thickpanel.errors.ThicknessError` when the method does 
 _REGISTRY: dict[str, MethodFn] = {}
 _ASSESS: dict[str, AssessFn] = {}
 # recommendation order: exact full-range methods first, the baseline last
-_ORDER = ("offset-panel", "offset-crease", "tapered", "hinge-shift", "membrane-gap", "plain")
+_ORDER = ("wrap-backing", "offset-panel", "offset-crease", "tapered", "hinge-shift", "membrane-gap", "plain")
 _RIGID = frozenset({"offset-panel", "offset-crease", "tapered", "hinge-shift"})
 
 
@@ -63,7 +64,7 @@ def register_method(name: str, fn: MethodFn, *, assess: AssessFn | None = None) 
     return fn
 
 
-for _mod in (tapered, offset_panel, offset_crease, membrane_gap, hinge_shift, plain):
+for _mod in (tapered, offset_panel, offset_crease, membrane_gap, hinge_shift, plain, wrap_backing):
     register_method(_mod.NAME, _mod.build, assess=getattr(_mod, "assess", None))
 
 
@@ -150,6 +151,13 @@ class MethodAdvice:
 def _rigid_verdict(pattern: CreasePattern, verdict: Any) -> tuple[str, str]:
     if verdict is not None:
         return str(verdict.kind), str(getattr(verdict, "reason", ""))
+    from ..wrap.sheet import wrap_info
+
+    if wrap_info(pattern) is not None:  # structural verdict, no solver run on thousands of panels
+        from ..wrap.verdict import wrap_rigidity
+
+        v = wrap_rigidity(pattern)
+        return str(v.kind), str(v.reason)
     try:
         from ..kinematics import rigid_foldability  # type: ignore[attr-defined]
     except ImportError:
@@ -254,7 +262,15 @@ def methods_for(
     kind, why = _rigid_verdict(pattern, verdict)
     out: list[MethodAdvice] = []
     build = build_all or (sweep and path is not None)
+    wrap_sheet, wrap_why = wrap_backing.applies(pattern)
     for name in _order():
+        if name == wrap_backing.NAME and not wrap_sheet:
+            out.append(MethodAdvice(name, False, wrap_why, 0.0))
+            continue
+        if wrap_sheet and name != wrap_backing.NAME:
+            out.append(MethodAdvice(name, False, "a hub-wrap sheet's stowed state is given by its construction, not "
+                                    "by fold angles about hinge axes; use wrap-backing", 0.0))
+            continue
         if name in _RIGID and kind == "locked":
             out.append(MethodAdvice(name, False, f"the pattern is not rigidly foldable: {why}", 0.0))
             continue

@@ -7,6 +7,7 @@ Frames: every slab is described in its panel's *flat frame*, which is the flat s
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
@@ -19,6 +20,8 @@ if TYPE_CHECKING:
     from ..poses import FoldState
 
 __all__ = ["CutPlane", "Standoff", "Slab", "HingeLine", "ThickPlan"]
+
+_T_MATCH = 1e-12  # fold fractions this close name the same state
 
 
 @dataclass(frozen=True)
@@ -149,13 +152,24 @@ class ThickPlan:
     method : str
         Registry name of the method (``tapered``, ``offset-panel`` ...).
     slabs : tuple of Slab
-        One per panel, indexed like ``pattern.panels``.
+        One per panel, in panel order (``Slab.panel`` names it); every method but ``wrap-backing``
+        gives every panel one, so ``slabs[p]`` is panel p's; ``wrap-backing`` leaves panels of bare
+        backing without a slab.
     hinges : tuple of HingeLine
         One per folding crease (and seam).
     target_fold : float, rad
         Largest fold magnitude the plan was made for.
     notes : tuple of str
         Method remarks for reports (reachable range, layer order ...).
+    meta : dict
+        Method data (``layers``, ``reachable``, ``sheet_parts`` ...), informative only.
+    explicit_poses : tuple of (float, (P, 4, 4) float)
+        Slab poses given outright for some fold fractions (e.g. a construction's stowed poses at
+        t = 1); :meth:`poses` returns them for a state at that fraction instead of re-composing the
+        state's angles. Arrays are read-only.
+    follow_state : bool
+        Slabs ride the state's own panel poses (``state.poses``) at other fractions, for paths whose
+        poses are not composed from fold angles (least-squares deployments with compliant hinges).
     """
 
     pattern: CreasePattern
@@ -165,6 +179,26 @@ class ThickPlan:
     target_fold: float
     notes: tuple[str, ...] = ()
     meta: dict = field(default_factory=dict, compare=False)
+    explicit_poses: tuple[tuple[float, FloatArray], ...] = field(default=(), compare=False)
+    follow_state: bool = field(default=False, compare=False)
+
+    def __post_init__(self) -> None:
+        for t, poses in self.explicit_poses:
+            arr = np.asarray(poses)
+            if not (0.0 <= float(t) <= 1.0) or arr.shape != (self.pattern.n_panels, 4, 4):
+                raise ValueError(f"explicit poses at t = {t!r} need 0 <= t <= 1 and shape "
+                                 f"({self.pattern.n_panels}, 4, 4); got {arr.shape}")
+            if arr.flags.writeable:
+                raise ValueError(f"explicit poses at t = {t!r} must be a read-only array")
+
+    def explicit_at(self, t: float) -> FloatArray | None:
+        """The explicit poses given for fold fraction ``t`` (exact match within 1e-12), or None."""
+        if not math.isfinite(t):
+            return None
+        for tk, poses in self.explicit_poses:
+            if abs(float(tk) - t) <= _T_MATCH:
+                return poses
+        return None
 
     def hinge_for(self, crease: int) -> HingeLine:
         """The hinge line on ``crease``."""
@@ -180,7 +214,14 @@ class ThickPlan:
         """(P, 4, 4) slab poses for a fold state: the state's angles about this plan's hinge axes.
 
         For methods whose hinges stay on the reference surface this equals ``state.poses``.
+        :attr:`explicit_poses` given for the state's fold fraction win; with :attr:`follow_state`
+        the state's own poses are used otherwise.
         """
+        got = self.explicit_at(float(state.t))
+        if got is not None:
+            return got
+        if self.follow_state:
+            return np.asarray(state.poses)
         from ..poses import compose_poses
 
         m = self.pattern.n_creases

@@ -1,0 +1,1 @@
+"""Wrapped-hub arrays: sheets that wrap round a polygonal hub (zero-thickness and thick constructions)."""
