@@ -325,3 +325,24 @@ def test_thick_acceptance_case_builds_and_clears():
             assert part.volume == pytest.approx(area * 2.0, rel=1e-9)
     names = [p.name for p in ps.parts]
     assert "BACKING" in names and "BACKING" not in [p.name for p in ps.in_state(path.states[-1])]
+
+
+def test_thick_sheet_compliance_is_measured_on_its_reference(tmp_path):
+    """A thick sheet's stowed panels include bent backing strips; the deployment's hinge compliance is
+    measured on the zero-thickness reference sheet, whose stowed state closes exactly (loop closure,
+    Kawasaki-Maekawa-consistent stowed fold angles), so its last row is zero; the backing must not stretch."""
+    from thickpanel.build import run_check
+    from thickpanel.design import load_design
+
+    f = tmp_path / "small-wrap.toml"
+    f.write_text('name = "small-wrap"\n[layout]\nfamily = "hub-wrap"\nsides = 4\nrings = 2\n'
+                 'ring_height = 60.0\nhub_circumradius = 80.0\n[panels]\nthickness = 1.5\nmaterial = "pp"\n'
+                 '[method]\nname = "wrap-backing"\n[hinge]\nstyle = "none"\n[fold]\ntarget_deg = 180.0\n'
+                 'states = 5\n[checks]\nmin_clearance = 0.0\n', encoding="utf-8")
+    s = run_check(load_design(f))
+    m = s["metrics"]
+    assert "zero-thickness reference" in m["compliance_method"]
+    rows = m["compliance"]
+    assert rows[0]["max_misfit_deg"] == 0.0 and rows[-1]["max_misfit_deg"] < 1e-4  # deg, round-off at 180 deg folds
+    assert m["backing_stretch_mm"] <= 1e-6
+    assert m["closure_error"] < 1e-6  # rad; angles read back from poses at 180 deg lose ~sqrt(eps)

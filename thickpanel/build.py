@@ -30,10 +30,10 @@ from .build_result import (
     SLACK_STATES,
     BuildResult,
     Progress,
-    _api,
-    _deg,
-    _Run,
+    StageRun,
     default_out_dir,
+    degrees_of,
+    stage_api,
 )
 from .build_wrap import (
     clearance_path,
@@ -85,7 +85,7 @@ def run_pipeline(
         See :data:`Progress`.
     """
     res = BuildResult(design=design, command=command)
-    run = _Run(res, progress)
+    run = StageRun(res, progress)
     want = set(stages)
     res.out_dir = Path(out_dir) if out_dir else default_out_dir(design)
     writes = command != "check" and bool(want & {"exports", "drawings", "report"})
@@ -100,7 +100,7 @@ def run_pipeline(
     return res
 
 
-def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: tuple[str, ...] | None) -> None:
+def _stages(run: StageRun, want: set[str], command: str, at: float | None, formats: tuple[str, ...] | None) -> None:
     res = run.res
     design = res.design
     # -- pattern (input errors propagate as DesignFileError)
@@ -138,7 +138,7 @@ def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: 
         states = (at,) if at is not None else design.exports.states
         _exports(run, states, formats or design.exports.formats)
     if "drawings" in want and (design.exports.drawings or command == "report"):
-        fn, why = _api("export.drawing", "write_drawings")
+        fn, why = stage_api("export.drawing", "write_drawings")
         if fn is None:
             run.skip("drawings", "not available", why)
         else:
@@ -147,7 +147,7 @@ def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: 
                 res.outputs += [Path(p) for p in paths]
                 rec["note"] = f"{len(paths)} files"
     if "report" in want and (design.exports.report or command == "report"):
-        fn, why = _api("export.report", "write_report")
+        fn, why = stage_api("export.report", "write_report")
         if fn is None:
             run.skip("report", "not available", why)
         else:
@@ -157,9 +157,9 @@ def _stages(run: _Run, want: set[str], command: str, at: float | None, formats: 
                 rec["note"] = str(res.report)
 
 
-def _foldability(run: _Run, cp: Any) -> None:
+def _foldability(run: StageRun, cp: Any) -> None:
     res, d = run.res, run.res.design
-    fn, why = _api("foldability", "check_foldability")
+    fn, why = stage_api("foldability", "check_foldability")
     if fn is None:
         run.skip("foldability", "not available", why)
         res.check("flat-foldable vertices", "could not run", why)
@@ -184,13 +184,13 @@ def _foldability(run: _Run, cp: Any) -> None:
             res.check("flat-foldable vertices", verdict, f"{len(failing)} vertices fail: {ids}. {rec['note']}")
 
 
-def _rigidity(run: _Run, cp: Any) -> None:
+def _rigidity(run: StageRun, cp: Any) -> None:
     res, d = run.res, run.res.design
     if is_wrap_sheet(cp):  # structural verdict; the deployment's compliance replaces joint slack
         with run.stage("rigidity") as rec:
             wrap_rigidity_stage(res, rec, d.checks.require_rigid)
         return
-    fn, why = _api("kinematics", "rigid_foldability")
+    fn, why = stage_api("kinematics", "rigid_foldability")
     if fn is None:
         run.skip("rigidity", "not available", why)
         res.check("rigid-foldable", "could not run", why)
@@ -210,10 +210,10 @@ def _rigidity(run: _Run, cp: Any) -> None:
         _slack(run, cp)
 
 
-def _slack(run: _Run, cp: Any) -> None:
+def _slack(run: StageRun, cp: Any) -> None:
     """Hinge play a locked pattern needs to fold with rigid panels (least-squares fold)."""
     res, d = run.res, run.res.design
-    fn, why = _api("kinematics", "joint_slack")
+    fn, why = stage_api("kinematics", "joint_slack")
     if fn is None:
         run.skip("joint slack", "not available", why)
         return
@@ -227,14 +227,14 @@ def _slack(run: _Run, cp: Any) -> None:
             return
         res.slack = rep
         worst = ", ".join(f"{h} {mm:.3g} mm" for h, mm in rep.worst(3))
-        rec["note"] = (f"largest hinge play {rep.max_play_mm:.3g} mm to fold {_deg(target):.0f} deg with rigid "
+        rec["note"] = (f"largest hinge play {rep.max_play_mm:.3g} mm to fold {degrees_of(target):.0f} deg with rigid "
                        f"panels (worst: {worst})")
         res.metrics["slack_max_play_mm"] = rep.max_play_mm
         res.check("joint slack (locked pattern)", "warn", rec["note"] + "; choose hinge clearances, compliant "
                   "hinges or slits accordingly")
 
 
-def _fold_path(run: _Run, cp: Any, target: float) -> None:
+def _fold_path(run: StageRun, cp: Any, target: float) -> None:
     res, d = run.res, run.res.design
     if run.blocked:
         run.skip("fold path", "blocked", run.blocked)
@@ -243,7 +243,7 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         with run.stage("fold path") as rec:
             wrap_fold_path_stage(res, rec, d.fold.states)
         return
-    fn, why = _api("kinematics", "fold_path")
+    fn, why = stage_api("kinematics", "fold_path")
     if fn is None:
         run.skip("fold path", "not available", why)
         res.check("fold path", "could not run", why)
@@ -265,7 +265,7 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
             raise DesignFileError(f"[fold] driver = {d.fold.driver!r}: no such crease (C000..C{n - 1:03d})")
         kw["driver"] = k
     if d.fold.path != "assignment":  # a chosen path among several freedoms (thickpanel.path_choice)
-        fn, why = _api("path_choice", "chosen_path")
+        fn, why = stage_api("path_choice", "chosen_path")
         kw = {"target": target, "n_states": d.fold.states, "choose": d.fold.path, "keep_symmetry": "auto"}
     with run.stage("fold path") as rec:
         try:
@@ -281,9 +281,9 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         res.path = path
         reach = max(float(np.abs(s.angles).max()) if len(s.angles) else 0.0 for s in path.states)
         err = max(float(s.closure_error) for s in path.states)
-        res.metrics.update(fold_states=len(path.states), reached_fold_deg=_deg(reach),
+        res.metrics.update(fold_states=len(path.states), reached_fold_deg=degrees_of(reach),
                            closure_error=err, stop_reason=path.stop_reason)
-        rec["note"] = (f"{len(path.states)} states, reached {_deg(reach):.1f} of {d.fold.target_deg:g} deg, "
+        rec["note"] = (f"{len(path.states)} states, reached {degrees_of(reach):.1f} of {d.fold.target_deg:g} deg, "
                        f"stop: {path.stop_reason}")
         if path.meta.get("choice", "assignment") != "assignment":
             hit = path.meta.get("first_contact")
@@ -293,13 +293,13 @@ def _fold_path(run: _Run, cp: Any, target: float) -> None:
         res.check("fold reaches target", "warn" if short else "pass", rec["note"])
 
 
-def _method(run: _Run, cp: Any, thickness: Any, target: float) -> None:
+def _method(run: StageRun, cp: Any, thickness: Any, target: float) -> None:
     res, d = run.res, run.res.design
     if run.blocked:
         run.skip("method", "blocked", run.blocked)
         return
-    advise, why = _api("thickness", "methods_for")
-    make, why2 = _api("thickness", "make_plan")
+    advise, why = stage_api("thickness", "methods_for")
+    make, why2 = stage_api("thickness", "make_plan")
     if make is None or advise is None:
         run.skip("method", "not available", why or why2)
         res.check("thickness method", "could not run", why or why2)
@@ -394,14 +394,14 @@ def _check_options(fn: Callable[..., Any], opts: dict[str, Any], where: str, fix
             raise DesignFileError(f"unknown key {where} {k}{suggest(k, valid)} (valid: {', '.join(valid) or 'none'})")
 
 
-def _clearance(run: _Run) -> None:
+def _clearance(run: StageRun) -> None:
     res, d = run.res, run.res.design
     if run.blocked or res.plan is None or res.path is None:
         why = run.blocked or ("no fold path" if res.path is None else "no thickness plan")
         run.skip("clearance", "blocked", why)
         res.check("clearance over the fold", "not proven", f"the sweep did not run: {why}")
         return
-    fn, why = _api("clearance", "clearance")
+    fn, why = stage_api("clearance", "clearance")
     if fn is None:
         run.skip("clearance", "not available", why)
         res.check("clearance over the fold", "could not run", why)
@@ -454,9 +454,9 @@ def _stop_at_contact(res: BuildResult, sweep: Callable[..., Any], rep: Any, tc: 
         return sweep(res.plan, res.path, margin=rep.margin)
     res.path = res.path.with_states(kept, stop_reason="contact")  # keeps the exact-state hook
     reach = float(np.abs(kept[-1].angles).max())
-    res.metrics.update(fold_states=len(kept), reached_fold_deg=_deg(reach), stop_reason="contact")
+    res.metrics.update(fold_states=len(kept), reached_fold_deg=degrees_of(reach), stop_reason="contact")
     res.check("fold stops at first contact", "info", f"first contact at t = {tc:.3f}; the fold path ends at "
-              f"t = {kept[-1].t:.3f} ({_deg(reach):.1f} deg)")
+              f"t = {kept[-1].t:.3f} ({degrees_of(reach):.1f} deg)")
     return sweep(res.plan, res.path, margin=rep.margin, extra_pieces=hardware_for(res) or None)
 
 
@@ -475,23 +475,23 @@ def _envelope(res: BuildResult) -> None:
         wrap_metrics_into(res)
 
 
-def _solids(run: _Run) -> None:
+def _solids(run: StageRun) -> None:
     res, d = run.res, run.res.design
     if run.blocked or res.plan is None:
         run.skip("solids", "blocked", run.blocked or "no thickness plan")
         return
-    fn, why = _api("solids", "build_parts")
+    fn, why = stage_api("solids", "build_parts")
     if fn is None:
         run.skip("solids", "not available", why)
         return
     opts = resolved_hinge_options(res)  # play_mm = "slack": each hinge's joint-slack play
-    styles_fn, _ = _api("hinges", "available_hinge_styles")
+    styles_fn, _ = stage_api("hinges", "available_hinge_styles")
     if styles_fn is not None:
         styles = list(styles_fn())
         if d.hinge.style not in styles:
             raise DesignFileError(f"[hinge] style = {d.hinge.style!r} is not a hinge style"
                                   f"{suggest(d.hinge.style, styles)} (available: {', '.join(styles)})")
-        get_style, _ = _api("hinges", "get_hinge_style")
+        get_style, _ = stage_api("hinges", "get_hinge_style")
         if get_style is not None:
             try:
                 get_style(d.hinge.style, **opts)
@@ -544,16 +544,16 @@ def _given_density(parts: Any, d: Design) -> None:
             p.attrs["density_source"] = d.panels.density_source or "design file [panels] density"
 
 
-def _exports(run: _Run, states: tuple[float, ...], formats: tuple[str, ...]) -> None:
+def _exports(run: StageRun, states: tuple[float, ...], formats: tuple[str, ...]) -> None:
     res = run.res
     if res.parts is None:
         run.skip("exports", "blocked", run.blocked or "no solids")
         return
-    fn, why = _api("export", "export_parts")
+    fn, why = stage_api("export", "export_parts")
     if fn is None:
         run.skip("exports", "not available", why)
         return
-    avail, _ = _api("export", "available_formats")
+    avail, _ = stage_api("export", "available_formats")
     if avail is not None:
         names = list(avail())
         for f in formats:

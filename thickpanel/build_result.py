@@ -1,7 +1,7 @@
 """The value a pipeline run produces and the stage bookkeeping shared by :mod:`thickpanel.build`.
 
-``BuildResult`` collects what every stage made; ``_Run`` records stage status, timing and
-progress; ``_api`` resolves a stage's module through the agreed public names (a missing module is
+``BuildResult`` collects what every stage made; ``StageRun`` records stage status, timing and
+progress; ``stage_api`` resolves a stage's module through the agreed public names (a missing module is
 "not available", never a stand-in).
 """
 
@@ -200,7 +200,7 @@ def api(module: str, name: str) -> tuple[Any, str]:
     return fn, ""
 
 
-_api = api  # the name build.py has always used
+stage_api = api  # the name build.py has always used
 
 
 def default_out_dir(design: Design) -> Path:
@@ -208,7 +208,7 @@ def default_out_dir(design: Design) -> Path:
     return design.exports.folder or (Path.cwd() / "exports" / design.name)
 
 
-class _Run:
+class StageRun:
     def __init__(self, res: BuildResult, progress: Progress | None):
         self.res = res
         self.progress = progress
@@ -240,5 +240,5 @@ class _Run:
         self.res.stages.append({"stage": name, "status": status, "note": note, "seconds": 0.0})
 
 
-def _deg(x: float) -> float:
+def degrees_of(x: float) -> float:
     return float(np.degrees(x))

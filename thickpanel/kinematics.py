@@ -45,7 +45,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .errors import FoldError
-from .loop_model import _DAMPING, LoopModel, _correct, _Factor, loop_model
+from .loop_model import DAMPING, Factor, LoopModel, loop_model, newton_correct
 from .pattern import CreasePattern, cid
 from .poses import FoldPath, FoldState
 from .tolerances import DEFAULT_TOL, Tolerances
@@ -123,7 +123,7 @@ class _Tracker:
         return True, h
 
     def _step(self, new_level: float) -> tuple[FloatArray, int] | None:
-        factor: _Factor | None = None
+        factor: Factor | None = None
         if self.closed is not None:
             xp = self.closed.at_level(new_level, self.driver)
             k = self.driver_of(xp)
@@ -138,13 +138,13 @@ class _Tracker:
                 else:
                     _, J = self.model.residual_jacobian(self.x)
                     assert J is not None
-                    factor = _Factor(J, k)
+                    factor = Factor(J, k)
                 tan = self._projected_tangent() if self._is_multi() else factor.tangent()
                 if tan is None:
                     return None
                 xp = self.x + tan * (s * new_level - self.x[k])
         xp[k] = self.sign_of(k) * new_level if self.closed is None else xp[k]
-        got = _correct(self.model, xp, k, self.tol, factor)
+        got = newton_correct(self.model, xp, k, self.tol, factor)
         if not got.ok:
             return None
         if self.driver is None:  # the largest fold may have moved to another crease
@@ -152,7 +152,7 @@ class _Tracker:
             if k2 != k and abs(got.x[k2]) > new_level * (1 + self.tol.angle):
                 xq = got.x.copy()
                 xq[k2] = np.sign(xq[k2]) * new_level
-                got = _correct(self.model, xq, k2, self.tol)
+                got = newton_correct(self.model, xq, k2, self.tol)
                 if not got.ok:
                     return None
         if not self._signs_hold(got.x, self._previous()):
@@ -181,7 +181,7 @@ class _Tracker:
         N = (J.T @ J).tocsc()
         scale = float(N.diagonal().max()) or 1.0
         try:
-            y = spla.splu(N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale)).solve(N @ d)
+            y = spla.splu(N + sp.identity(N.shape[0], format="csc") * (DAMPING * scale)).solve(N @ d)
         except RuntimeError:
             return None
         t = d - y
@@ -203,7 +203,7 @@ class _Tracker:
         return bool(np.all(np.sign(x[big]) == np.sign(prev[big])))
 
 
-def _start_direction(model: LoopModel, weights: FloatArray | None = None) -> FloatArray:
+def start_direction(model: LoopModel, weights: FloatArray | None = None) -> FloatArray:
     """Direction of the first step off flat for the general solver.
 
     The assignment's signs (or the pattern's target angles), optionally scaled per crease by
@@ -238,7 +238,7 @@ def _flat_projector(model: LoopModel) -> Callable[[FloatArray], FloatArray] | No
         else:
             N = (J.T @ J).tocsc()
             scale = float(N.diagonal().max()) or 1.0
-            lu = spla.splu(N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale), permc_spec="MMD_AT_PLUS_A")
+            lu = spla.splu(N + sp.identity(N.shape[0], format="csc") * (DAMPING * scale), permc_spec="MMD_AT_PLUS_A")
             cache["f"] = lambda v: lu.solve(N @ v)
     return cache["f"]  # type: ignore[no-any-return]
 
@@ -251,10 +251,10 @@ def _start_directions(model: LoopModel) -> list[FloatArray]:
     from close enough. The variations scale each crease's share by a seeded random factor in
     [0.2, 1] before the projection (deterministic: seeds 0, 1, 2...).
     """
-    out = [_start_direction(model)]
+    out = [start_direction(model)]
     for seed in range(_START_TRIES - 1):
         w = np.random.default_rng(seed).uniform(0.2, 1.0, model.n)
-        out.append(_start_direction(model, w))
+        out.append(start_direction(model, w))
     return out
 
 
@@ -295,7 +295,7 @@ def require_closed_flat(model: LoopModel, tol: Tolerances) -> None:
         )
 
 
-def _default_target(model: LoopModel) -> float:
+def default_target(model: LoopModel) -> float:
     ta = model.pattern.target_angles[model.var_crease]
     ta = ta[np.isfinite(ta)]
     if len(ta) and np.abs(ta).max() > 0:
@@ -303,18 +303,18 @@ def _default_target(model: LoopModel) -> float:
     return DEFAULT_FULL_FOLD
 
 
-def _tracker(model: LoopModel, driver: int | None, tol: Tolerances, *, closed_form: bool = True) -> _Tracker:
+def path_tracker(model: LoopModel, driver: int | None, tol: Tolerances, *, closed_form: bool = True) -> _Tracker:
     from .verdicts import closed_form_path
 
     if not closed_form:
-        return _Tracker(model, tol, _start_direction(model), driver, None, np.zeros(model.n), 0.0)
+        return _Tracker(model, tol, start_direction(model), driver, None, np.zeros(model.n), 0.0)
     cache = model.__dict__.setdefault("_trackers", {})
     key = (id(tol), tol)
     if key not in cache:  # closed form and start direction depend only on the model and tol
         closed = closed_form_path(model, tol=tol) if not model.cycles else None
         if closed is not None and not closed.ok:
             closed = None
-        cache[key] = (closed, closed.direction() if closed is not None else _start_direction(model))
+        cache[key] = (closed, closed.direction() if closed is not None else start_direction(model))
     closed, direction = cache[key]
     if driver is not None and closed is not None and abs(closed.mult[driver]) <= tol.angle:
         raise FoldError(
@@ -375,7 +375,7 @@ def fold_path(
     k_drv = _resolve_driver(model, driver)
     if target is None:
         target = (
-            _default_target(model)
+            default_target(model)
             if k_drv is None
             else abs(float(np.nan_to_num(pattern.target_angles[model.var_crease[k_drv]], nan=DEFAULT_FULL_FOLD)))
         )
@@ -390,7 +390,7 @@ def fold_path(
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (flat and target states)")
     n_states = int(n_states)
     require_closed_flat(model, tol)
-    tr = _tracker(model, k_drv, tol, closed_form=closed_form)
+    tr = path_tracker(model, k_drv, tol, closed_form=closed_form)
     levels = np.linspace(0.0, target, n_states)
     states = [model.state(tr.x, 0.0)]
     stop = "target"
@@ -487,7 +487,7 @@ def solve_state(pattern: CreasePattern, t: float, *, path: FoldPath | None = Non
     s0 = path.states[max(k, 0)]
     if abs(s0.t - t) <= _ROUND:
         return s0
-    tr = _tracker(model, k_drv, tol)
+    tr = path_tracker(model, k_drv, tol)
     if tr.closed is None and "direction" in path.meta:
         tr.direction = np.asarray(path.meta["direction"], dtype=float)
     tr.x = np.asarray(s0.angles[model.var_crease], dtype=float).copy()

@@ -31,7 +31,7 @@ from .typing import FloatArray, IntArray
 __all__ = ["LoopModel", "loop_model"]
 
 _MAX_NEWTON = 16  # corrector iterations per step before the step is halved
-_DAMPING = 1e-10  # relative Levenberg-Marquardt damping (picks the minimum-norm correction)
+DAMPING = 1e-10  # relative Levenberg-Marquardt damping (picks the minimum-norm correction)
 
 
 @dataclass(eq=False)
@@ -339,10 +339,10 @@ class _Solve:
     factor: Any = None  # last factorisation used (reused for the next tangent)
 
 
-class _Factor:
+class Factor:
     """Factorised damped normal equations of the Jacobian with one unknown held fixed."""
 
-    def __init__(self, J: sp.csr_matrix, fixed: int, damping: float = _DAMPING) -> None:
+    def __init__(self, J: sp.csr_matrix, fixed: int, damping: float = DAMPING) -> None:
         n = J.shape[1]
         self.free = np.ones(n, dtype=bool)
         self.free[fixed] = False
@@ -385,7 +385,8 @@ class _Factor:
         return t
 
 
-def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, factor: _Factor | None = None) -> _Solve:
+def newton_correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances,
+                   factor: Factor | None = None) -> _Solve:
     """Newton corrector with unknown ``fixed`` held at its value in ``x0``.
 
     Gauss-Newton on the loop residuals with Levenberg-Marquardt damping: the damping is tiny (a
@@ -410,8 +411,8 @@ def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, fact
         if fac is None or not chord:
             _, J = model.residual_jacobian(x)
             assert J is not None
-            damp = fac.damping / 10 if fac is not None and fac.damping > _DAMPING else _DAMPING
-            fac = _Factor(J, fixed, damping=damp)
+            damp = fac.damping / 10 if fac is not None and fac.damping > DAMPING else DAMPING
+            fac = Factor(J, fixed, damping=damp)
         for _ in range(8):
             dx = fac.solve(-r)
             if dx is None:
@@ -434,13 +435,13 @@ def _correct(model: LoopModel, x0: FloatArray, fixed: int, tol: Tolerances, fact
     return _Solve(x, res <= goal, _MAX_NEWTON, res, fac)
 
 
-def _lsq(A: sp.csr_matrix, b: FloatArray) -> FloatArray | None:
+def damped_lsq(A: sp.csr_matrix, b: FloatArray) -> FloatArray | None:
     """Damped least-squares solution of ``A x = b`` (minimum norm where ``A`` is rank deficient)."""
     if A.shape[1] == 0:
         return np.zeros(0)
     N = (A.T @ A).tocsc()
     scale = float(N.diagonal().max()) or 1.0
-    N = N + sp.identity(N.shape[0], format="csc") * (_DAMPING * scale)
+    N = N + sp.identity(N.shape[0], format="csc") * (DAMPING * scale)
     try:
         out = spla.spsolve(N, A.T @ b, permc_spec="MMD_AT_PLUS_A")
     except RuntimeError:

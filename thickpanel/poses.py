@@ -297,7 +297,7 @@ def _edge_map(pattern: CreasePattern, ca: int, cb: int) -> FloatArray:
 _EDGES: weakref.WeakKeyDictionary[CreasePattern, IntArray] = weakref.WeakKeyDictionary()
 
 
-def _graph_edges(pattern: CreasePattern) -> IntArray:
+def graph_edges(pattern: CreasePattern) -> IntArray:
     """(E, 3) int: (panel, panel, crease) of every panel-graph edge (cached per pattern)."""
     e = _EDGES.get(pattern)
     if e is None:
@@ -315,7 +315,7 @@ def closure_error(pattern: CreasePattern, angles: FloatArray, poses: FloatArray)
     of the 4x4 entries, the translation part divided by the sheet size so the number is
     dimensionless. Tree edges give 0 by construction; the others measure loop closure.
     """
-    e = _graph_edges(pattern)
+    e = graph_edges(pattern)
     if len(e) == 0:
         return 0.0
     ext = np.ptp(pattern.vertices, axis=0).max() or 1.0

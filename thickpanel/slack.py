@@ -32,9 +32,9 @@ import scipy.sparse.linalg as spla
 from scipy.spatial.transform import Rotation
 
 from .errors import FoldError
-from .kinematics import DEFAULT_FULL_FOLD, _default_target, _start_direction, loop_model, require_closed_flat
+from .kinematics import DEFAULT_FULL_FOLD, default_target, loop_model, require_closed_flat, start_direction
 from .pattern import CreasePattern, cid
-from .poses import FoldPath, _graph_edges, edge_transforms
+from .poses import FoldPath, edge_transforms, graph_edges
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray, IntArray
 
@@ -193,7 +193,7 @@ def joint_slack(
     """
     model = loop_model(pattern)
     require_closed_flat(model, tol)
-    tgt = float(_default_target(model) if target is None else target)
+    tgt = float(default_target(model) if target is None else target)
     if not (0.0 < tgt < np.pi):
         raise FoldError(
             f"target fold {tgt!r} rad ({np.rad2deg(tgt):.6g} deg) is outside 0 < target < pi rad (0..180 deg "
@@ -201,7 +201,7 @@ def joint_slack(
         )
     if int(n_states) < 2:
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (flat and target states)")
-    prob = _Problem(pattern, model.base, _start_direction(model), model.var_crease, tol)
+    prob = SlackProblem(pattern, model.base, start_direction(model), model.var_crease, tol)
     if path is not None:
         return _from_path(prob, path, pattern)
     fractions = np.linspace(0.0, 1.0, int(n_states))
@@ -230,7 +230,7 @@ def joint_slack(
     )
 
 
-def _from_path(prob: _Problem, path: FoldPath, pattern: CreasePattern) -> SlackReport:
+def _from_path(prob: SlackProblem, path: FoldPath, pattern: CreasePattern) -> SlackReport:
     """Hinge play measured on the states of a given fold path (zero for a rigid path)."""
     if not path.states or path.states[0].pattern is not pattern and path.states[0].pattern != pattern:
         raise FoldError(f"fold path given to joint_slack belongs to another pattern than {pattern.name!r}")
@@ -246,7 +246,7 @@ def _from_path(prob: _Problem, path: FoldPath, pattern: CreasePattern) -> SlackR
                        f"fold path ({choice})")  # fmt: skip
 
 
-class _Problem:
+class SlackProblem:
     """Residuals of the hinge end points for incremental panel motions from reference poses."""
 
     def __init__(
@@ -255,7 +255,7 @@ class _Problem:
         self.pattern = pattern
         self.base = base
         self.tol = tol
-        e = _graph_edges(pattern)
+        e = graph_edges(pattern)
         self.edges = e
         ne = len(e)
         m0 = edge_transforms(pattern, e[:, 0], e[:, 1], e[:, 2], np.zeros(pattern.n_creases))

@@ -22,9 +22,9 @@ from scipy.optimize import least_squares
 from .errors import FoldError
 from .kinematics import loop_model
 from .pattern import CreasePattern, cid
-from .slack import SLACK_CAUTION, SlackReport, _Problem
+from .slack import SLACK_CAUTION, SlackProblem, SlackReport
 from .tolerances import DEFAULT_TOL, Tolerances
-from .tubes import _end_rings, deployed_tube
+from .tubes import deployed_tube, end_rings
 from .typing import FloatArray
 
 __all__ = ["TubeSlack", "tube_slack"]
@@ -96,7 +96,7 @@ def tube_slack(
         raise FoldError(f"n_states = {n_states!r} must be at least 2 (deployed and target heights)")
     dt = deployed_tube(pattern, tol=tol)
     model = loop_model(pattern)
-    bot, top = _end_rings(pattern)
+    bot, top = end_rings(pattern)
     owner = _owners(pattern)
     poses = np.array(dt.state.poses)
 
@@ -120,7 +120,7 @@ def tube_slack(
         return np.concatenate([np.linalg.norm(pb[ii] - pb[jj], axis=1), np.linalg.norm(pt[ki] - pt[kj], axis=1)])
 
     d0 = plate_distances(poses)
-    prob = _Problem(pattern, model.base, np.ones(model.n), model.var_crease, tol)
+    prob = SlackProblem(pattern, model.base, np.ones(model.n), model.var_crease, tol)
 
     def residual(z: FloatArray, ref: FloatArray, goal: float) -> FloatArray:
         ps = prob.poses_from(ref, z)

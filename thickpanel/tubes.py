@@ -29,7 +29,7 @@ import numpy as np
 
 from .errors import FoldError
 from .layouts.assignment import layout_info
-from .loop_model import LoopModel, _correct, loop_model
+from .loop_model import LoopModel, loop_model, newton_correct
 from .pattern import CreasePattern, cid
 from .poses import FoldState, closure_error, edge_transforms
 from .tolerances import DEFAULT_TOL, Tolerances
@@ -199,7 +199,7 @@ def deployed_tube(pattern: CreasePattern, *, outside: str | None = None, tol: To
             best = (wrong, chi, x, motions)
     assert best is not None
     _, chi, x0, motions = best
-    sol = _correct(model, x0, int(np.argmax(np.abs(x0))), tol)
+    sol = newton_correct(model, x0, int(np.argmax(np.abs(x0))), tol)
     r, _ = model.residual_jacobian(sol.x, jac=False)
     res = float(np.abs(r).max()) if len(r) else 0.0
     if not sol.ok or res > tol.closure:
@@ -242,7 +242,7 @@ def _end_rigidity_rows(pattern: CreasePattern, model: LoopModel, x: FloatArray, 
         for k, v in enumerate(panel.loop):
             if owner[v][0] < 0:
                 owner[v] = (p, k)
-    bot, top = _end_rings(pattern)
+    bot, top = end_rings(pattern)
     pairs = [(int(i), int(j)) for ring in (bot, top) for a, i in enumerate(ring) for j in ring[a + 1 :]]
     h = 1e-6
     cols = []
@@ -255,7 +255,7 @@ def _end_rigidity_rows(pattern: CreasePattern, model: LoopModel, x: FloatArray, 
     return np.array(cols).T.reshape(len(pairs) + 1, basis.shape[1])
 
 
-def _end_rings(pattern: CreasePattern) -> tuple[np.ndarray, np.ndarray]:
+def end_rings(pattern: CreasePattern) -> tuple[np.ndarray, np.ndarray]:
     """Vertex indices of the bottom and top end rings of the strip, each without its seam copy
     (the last column, largest x, which meets the first column in the tube)."""
     v = pattern.vertices
@@ -309,7 +309,7 @@ def tube_rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_
     capped = int(np.count_nonzero(s <= 1e-6 * max(float(s.max(initial=0.0)), 1e-300)))
     v = basis[:, 0]
     k = int(np.argmax(np.abs(v)))
-    sol = _correct(model, x + _PROBE_STEP * v / abs(v[k]), k, tol)
+    sol = newton_correct(model, x + _PROBE_STEP * v / abs(v[k]), k, tol)
     finite = "a Newton-corrected finite step confirms it" if sol.ok else "a finite step did not close again"
     ends = (
         "no rigid fold remains: a tube with rigid end plates folds only by panel deformation"

@@ -275,7 +275,7 @@ def nullity(J: sp.csr_matrix, *, rel: float = _RANK_RTOL) -> int:
 
 def locked_where(model: LoopModel, direction: FloatArray, *, tol: Tolerances = DEFAULT_TOL) -> list[str]:
     """Vertices whose loops stay open at the least-squares fold nearest ``direction`` (largest first)."""
-    from .loop_model import _lsq
+    from .loop_model import damped_lsq
 
     x = direction * (PROBE_FOLD / max(float(np.abs(direction).max()), 1e-300))
     k = int(np.argmax(np.abs(x)))
@@ -284,7 +284,7 @@ def locked_where(model: LoopModel, direction: FloatArray, *, tol: Tolerances = D
     for _ in range(8):
         r, J = model.residual_jacobian(x)
         assert J is not None
-        dx = _lsq(J[:, free], -r)
+        dx = damped_lsq(J[:, free], -r)
         if dx is None:
             break
         x[free] += dx
@@ -315,7 +315,7 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
     FoldError
         Only for unusable input (disconnected panels, nothing to fold).
     """
-    from .kinematics import _tracker, fold_path, loop_model, require_closed_flat
+    from .kinematics import fold_path, loop_model, path_tracker, require_closed_flat
 
     model = loop_model(pattern)
     try:
@@ -336,7 +336,7 @@ def rigid_foldability(pattern: CreasePattern, *, tol: Tolerances = DEFAULT_TOL) 
             raise
         sym_path, sym_note = _symmetric_probe(pattern, model, tol)
         if sym_path is None:
-            where = locked_where(model, _tracker(model, None, tol).direction, tol=tol)
+            where = locked_where(model, path_tracker(model, None, tol).direction, tol=tol)
             return RigidVerdict(
                 "locked", 0, tuple(where),
                 "the general solver finds no rigid fold off the flat state near the assignment's direction; the loops "

@@ -48,7 +48,7 @@ border:3px solid #222;display:inline-block}.note{color:#555;font-size:.9em}img{m
 """
 
 
-def _png(fig: Any) -> bytes:
+def figure_png(fig: Any) -> bytes:
     from matplotlib.backends.backend_agg import FigureCanvasAgg
 
     FigureCanvasAgg(fig)
@@ -108,7 +108,7 @@ def crease_png(pattern: Any) -> bytes:
     ax.set_xlabel("x (mm)")
     ax.set_ylabel("y (mm)")
     ax.set_title("crease pattern (valley dashed, mountain dash-dot-dot)")
-    return _png(fig)
+    return figure_png(fig)
 
 
 def _draw_state(ax: Any, faces: list[np.ndarray], lim: tuple[np.ndarray, np.ndarray]) -> None:
@@ -143,7 +143,7 @@ def fold_strip_png(res: Any, fractions: Sequence[float] = (0.0, 0.25, 0.5, 0.75,
         _draw_state(ax, faces, (pts.min(axis=0), pts.max(axis=0)))
         ax.set_title(f"t = {t:.2f}", fontsize=10)
     fig.subplots_adjust(left=0, right=1, bottom=0, top=0.9, wspace=0)
-    return _png(fig)
+    return figure_png(fig)
 
 
 def envelope_png(res: Any) -> bytes | None:
@@ -175,7 +175,7 @@ def envelope_png(res: Any) -> bytes | None:
         ax.set_xlabel(f"{names[i]} (mm)")
         ax.set_ylabel(f"{names[j]} (mm)")
     fig.tight_layout()
-    return _png(fig)
+    return figure_png(fig)
 
 
 def _bound_table(rep: Any) -> str:

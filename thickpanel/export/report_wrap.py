@@ -44,7 +44,7 @@ def side_by_side_png(res: Any) -> bytes | None:
         return None
     from matplotlib.figure import Figure
 
-    from .report import _png
+    from .report import figure_png
 
     m = res.metrics
     fig = Figure(figsize=(11, 5.2), dpi=90)
@@ -67,7 +67,7 @@ def side_by_side_png(res: Any) -> bytes | None:
         ax.set_xlabel("x (mm)")
         ax.set_ylabel("y (mm)")
     fig.tight_layout()
-    return _png(fig)
+    return figure_png(fig)
 
 
 def _table(head: list[str], rows: list[list[Any]]) -> str:

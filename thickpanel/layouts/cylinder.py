@@ -28,7 +28,7 @@ from ..pattern import CreasePattern, Seam
 from ..tolerances import DEFAULT_TOL, Tolerances
 from . import register_layout, register_panel_estimate
 from .assignment import LayoutInfo, attach_info, choose_assignment
-from .spiral import _count, _real
+from .spiral import count_param, real_param
 
 __all__ = ["kresling", "kresling_edges"]
 
@@ -78,11 +78,11 @@ def kresling(
     -------
     CreasePattern with ``stories`` seams; crease classes ``ring``, ``diagonal-b``, ``diagonal-c``.
     """
-    n = _count("sides", sides, 3, 720)
-    r = _real("radius", radius, "mm")
-    h = _real("height", height, "mm")
-    phi_deg = _real("twist_deg", twist_deg, "deg")
-    ns = _count("stories", stories, 1, 10_000)
+    n = count_param("sides", sides, 3, 720)
+    r = real_param("radius", radius, "mm")
+    h = real_param("height", height, "mm")
+    phi_deg = real_param("twist_deg", twist_deg, "deg")
+    ns = count_param("stories", stories, 1, 10_000)
     if not r > 0:
         raise PatternError(f"radius = {r:g} mm is out of range; allowed: > 0 mm")
     if not h > 0:

@@ -88,13 +88,13 @@ SPECS = {
 
 
 # ---------------------------------------------------------------------------- validation
-def _real(name: str, value: object, unit: str) -> float:
+def real_param(name: str, value: object, unit: str) -> float:
     if isinstance(value, bool) or not isinstance(value, numbers.Real) or not math.isfinite(float(value)):
         raise PatternError(f"{name} must be a finite number in {unit}; got {value!r}")
     return float(value)
 
 
-def _count(name: str, value: object, lo: int, hi: int) -> int:
+def count_param(name: str, value: object, lo: int, hi: int) -> int:
     if isinstance(value, bool) or not isinstance(value, numbers.Integral):
         raise PatternError(f"{name} must be a whole number in {lo}..{hi}; got {value!r}")
     if not lo <= int(value) <= hi:
@@ -112,14 +112,14 @@ def _user_constraints(
             f"with {rings} rings and outer_diameter {outer:g} mm either fixes the other"
         )
     if hub is not None:
-        d = _real("hub_diameter", hub, "mm")
+        d = real_param("hub_diameter", hub, "mm")
         if not 0.0 < d < outer:
             raise PatternError(
                 f"hub_diameter = {d:g} mm is out of range; allowed: 0 < hub_diameter < outer_diameter = {outer:g} mm"
             )
         out.append(("hub_diameter", d, Constraint("h", math.log(outer / d) / rings)))
     if ring_scale is not None:
-        s = _real("ring_scale", ring_scale, "(ratio)")
+        s = real_param("ring_scale", ring_scale, "(ratio)")
         if not 1.0 < s < math.exp(_H_RANGE[1]):
             top = math.exp(_H_RANGE[1])
             raise PatternError(f"ring_scale = {s:g} is out of range; allowed: 1 < ring_scale < {top:.4g}")
@@ -129,7 +129,7 @@ def _user_constraints(
         raise PatternError(f"give only one of b, pitch_deg and k (they fix the same spiral); got {dict(spiral)}")
     if spiral:
         nm, v = spiral[0]
-        x = _real(nm, v, "deg" if nm == "pitch_deg" else "(dimensionless)")
+        x = real_param(nm, v, "deg" if nm == "pitch_deg" else "(dimensionless)")
         if nm == "b":
             if not x > 0:
                 raise PatternError(f"b = {x:g} is out of range; allowed: b > 0")
@@ -371,12 +371,12 @@ def _grid(
     defaults: dict[str, float | None],
 ) -> CreasePattern:
     spec = SPECS[layout]
-    n = _count("arms", arms, 3, 720)
-    m = _count("rings", rings, 1, 500)
-    outer = _real("outer_diameter", outer_diameter, "mm")
+    n = count_param("arms", arms, 3, 720)
+    m = count_param("rings", rings, 1, 500)
+    outer = real_param("outer_diameter", outer_diameter, "mm")
     if not outer > 0:
         raise PatternError(f"outer_diameter = {outer:g} mm is out of range; allowed: > 0 mm")
-    ns = _count("slits", slits, 0, n)
+    ns = count_param("slits", slits, 0, n)
     if triangulate not in TRIANGULATE:
         raise PatternError(f"triangulate = {triangulate!r}; allowed: {', '.join(TRIANGULATE)}")
     given = _user_constraints(spec, n, m, outer, hub_diameter, b, pitch_deg, ring_scale, k)
@@ -501,7 +501,7 @@ def log_spiral_grid(
     >>> cp.n_panels  # 12 (3 - 1) kites + 2 x 12 triangles + the hub
     49
     """
-    n = _count("arms", arms, 3, 720)
+    n = count_param("arms", arms, 3, 720)
     return _grid("log-spiral", n, rings, outer_diameter, hub_diameter, b, pitch_deg, ring_scale, k, slits,
                  triangulate, flat_foldable, assign, name, tol, math.pi / n if symmetric else None, {})
 
