@@ -42,6 +42,7 @@ __all__ = [
     "compose_poses",
     "fold_state_from_angles",
     "closure_error",
+    "rigid_fit",
 ]
 
 
@@ -443,6 +444,23 @@ class FoldPath:
         w = (t - s0.t) / (s1.t - s0.t)
         ang = (1 - w) * s0.angles + w * s1.angles
         return fold_state_from_angles(s0.pattern, ang, base=s0.base_panel, t=t)
+
+
+def rigid_fit(source: FloatArray, target: FloatArray) -> FloatArray:
+    """4x4 proper rigid motion taking points ``source`` (k, 3) onto ``target`` (k, 3), least squares.
+
+    Kabsch's method (Kabsch 1976, Acta Cryst. A32:922) with the determinant fixed to +1, so a planar
+    point set, whose mirror image is also a proper motion of it, is always fitted by a rotation.
+    """
+    cs, ct = source.mean(axis=0), target.mean(axis=0)
+    h = (source - cs).T @ (target - ct)
+    u, _, vt = np.linalg.svd(h)
+    d = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
+    rot = vt.T @ np.diag([1.0, 1.0, d]) @ u.T
+    m = np.eye(4)
+    m[:3, :3] = rot
+    m[:3, 3] = ct - rot @ cs
+    return m
 
 
 def tree_creases(tree: list[tuple[int, int, int]]) -> IntArray:

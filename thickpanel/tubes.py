@@ -31,7 +31,7 @@ from .errors import FoldError
 from .layouts.assignment import layout_info
 from .loop_model import LoopModel, loop_model, newton_correct
 from .pattern import CreasePattern, cid
-from .poses import FoldState, closure_error, edge_transforms
+from .poses import FoldState, closure_error, edge_transforms, rigid_fit
 from .tolerances import DEFAULT_TOL, Tolerances
 from .typing import FloatArray
 
@@ -111,15 +111,7 @@ def _tube_points(pattern: CreasePattern, prm: dict[str, float], chi: int, tol: T
 
 def _panel_motion(flat: FloatArray, target: FloatArray) -> FloatArray:
     """4x4 proper rigid motion taking flat corners (k, 3) onto target corners (k, 3) (Kabsch)."""
-    cf, ct = flat.mean(axis=0), target.mean(axis=0)
-    h = (flat - cf).T @ (target - ct)
-    u, _, vt = np.linalg.svd(h)
-    d = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
-    rot = vt.T @ np.diag([1.0, 1.0, d]) @ u.T
-    m = np.eye(4)
-    m[:3, :3] = rot
-    m[:3, 3] = ct - rot @ cf
-    return m
+    return rigid_fit(flat, target)
 
 
 def _angles_from_motions(pattern: CreasePattern, model: LoopModel, motions: FloatArray) -> FloatArray:

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import PatternError
+from ..poses import rigid_fit
 from ..typing import FloatArray
 
 __all__ = ["WrapSpec", "Hub", "clip_halfplane", "kabsch_pose", "polygon_area"]
@@ -138,13 +139,7 @@ def kabsch_pose(flat: FloatArray, placed: FloatArray) -> tuple[FloatArray, float
     """
     a = np.column_stack([flat, np.zeros(len(flat))])
     b = np.asarray(placed, dtype=float)
-    ca, cb = a.mean(axis=0), b.mean(axis=0)
-    h = (a - ca).T @ (b - cb)
-    u, _, vt = np.linalg.svd(h)
-    d = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
-    r = vt.T @ np.diag([1.0, 1.0, d]) @ u.T
-    pose = np.eye(4)
-    pose[:3, :3] = r
-    pose[:3, 3] = cb - r @ ca
+    pose = rigid_fit(a, b)
+    r = pose[:3, :3]
     res = float(np.abs(a @ r.T + pose[:3, 3] - b).max())
     return pose, res
