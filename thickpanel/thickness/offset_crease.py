@@ -23,6 +23,8 @@ from collections.abc import Mapping
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
 
 from ..errors import ThicknessError
 from ..pattern import cid, pid, vid
@@ -54,30 +56,38 @@ def sine_ratio_thickness(pattern: CreasePattern, thickness: float, *, tol: Toler
     interior vertex, the thickest equal to ``thickness`` (Chen, Peng & You 2015)."""
     n = pattern.n_panels
     verts = [int(v) for v in pattern.interior_vertices]
-    rows, rhs = [], []
+    # one equation log t_p - log s_v = log sin(sector) per sector: sparse (two entries a row), solved in
+    # the least-squares sense; a dense matrix would need (4 V) x (P + V) numbers
+    r_idx: list[int] = []
+    c_idx: list[int] = []
+    vals: list[float] = []
+    rhs: list[float] = []
     for k, v in enumerate(verts):
         cs, sec = sector_angles(pattern, v)
         for i in range(len(cs)):
             p = _panel_between(pattern, v, cs[i], cs[(i + 1) % len(cs)])
-            row = np.zeros(n + len(verts))
-            row[p] = 1.0
-            row[n + k] = -1.0
-            rows.append(row)
+            row = len(rhs)
+            r_idx += [row, row]
+            c_idx += [p, n + k]
+            vals += [1.0, -1.0]
             rhs.append(math.log(max(math.sin(float(sec[i])), 1e-300)))
-    if not rows:
+    if not rhs:
         return np.full(n, float(thickness))
+    n_eq = len(rhs)
     # panels with no interior vertex keep log t free: pin them to 0 softly
-    a = np.array(rows)
-    b = np.array(rhs)
-    free = np.nonzero(~np.any(a[:, :n] != 0, axis=0))[0]
+    used = np.zeros(n, dtype=bool)
+    used[np.asarray(c_idx[0::2], dtype=np.int64)] = True
+    free = np.nonzero(~used)[0]
     for fp in free:
-        row = np.zeros(n + len(verts))
-        row[fp] = 1.0
-        a = np.vstack([a, row])
-        b = np.append(b, 0.0)
-    x, *_ = np.linalg.lstsq(a, b, rcond=None)
+        r_idx.append(len(rhs))
+        c_idx.append(int(fp))
+        vals.append(1.0)
+        rhs.append(0.0)
+    a = sp.csr_matrix((vals, (r_idx, c_idx)), shape=(len(rhs), n + len(verts)))
+    b = np.asarray(rhs, dtype=float)
+    x = spla.lsqr(a, b, atol=1e-15, btol=1e-15, conlim=1e12, iter_lim=50 * (n + len(verts)))[0]
     res = a @ x - b
-    bad = np.nonzero(np.abs(res[: len(rows)]) > 1e3 * tol.angle)[0]
+    bad = np.nonzero(np.abs(res[:n_eq]) > 1e3 * tol.angle)[0]
     if len(bad):
         k = 0
         for v in verts:
